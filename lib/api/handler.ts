@@ -1,0 +1,76 @@
+import 'server-only';
+import { NextResponse, type NextRequest } from 'next/server';
+import { z } from 'zod';
+import { ApiError, type ApiIssue } from '@/lib/api/errors';
+import { getCurrentUser, type CurrentUser } from '@/lib/auth/session';
+import type { Role } from '@/lib/auth/roles';
+
+type Schema = z.ZodType;
+type Infer<S> = S extends z.ZodType ? z.infer<S> : undefined;
+
+export type RouteContext<P, Q, B> = { req: NextRequest; user: CurrentUser; params: P; query: Q; body: B };
+
+type Options<P extends Schema | undefined, Q extends Schema | undefined, B extends Schema | undefined> = {
+  roles: readonly Role[];
+  params?: P;
+  query?: Q;
+  body?: B;
+};
+
+export function zodIssues(error: z.ZodError): ApiIssue[] {
+  return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+}
+
+export function errorResponse(err: ApiError): NextResponse {
+  return NextResponse.json(
+    { error: { code: err.code, message: err.message, ...(err.issues ? { issues: err.issues } : {}) } },
+    { status: err.status },
+  );
+}
+
+function parse<S extends Schema>(schema: S, value: unknown, where: string): z.infer<S> {
+  const r = schema.safeParse(value);
+  if (!r.success) {
+    const issues = zodIssues(r.error);
+    const first = issues[0];
+    const label = first?.path ? `${first.path}: ` : '';
+    throw new ApiError(422, 'invalid_input', `The ${where} is not valid — ${label}${first?.message ?? 'check the values'}.`, issues);
+  }
+  return r.data;
+}
+
+/**
+ * Every route handler goes through this: session (401), role (403), zod checks of
+ * params, query and body (422), and error mapping (no stack traces leave the server).
+ */
+export function route<P extends Schema | undefined = undefined, Q extends Schema | undefined = undefined, B extends Schema | undefined = undefined>(
+  opts: Options<P, Q, B>,
+  handler: (ctx: RouteContext<Infer<P>, Infer<Q>, Infer<B>>) => Promise<unknown>,
+) {
+  return async (req: NextRequest, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
+    try {
+      const user = await getCurrentUser();
+      if (!user) throw new ApiError(401, 'unauthenticated', 'Sign in to use this.');
+      if (!opts.roles.includes(user.role)) throw new ApiError(403, 'forbidden', 'Your role does not allow this.');
+      const params = opts.params ? parse(opts.params, await ctx.params, 'address') : undefined;
+      const query = opts.query ? parse(opts.query, Object.fromEntries(req.nextUrl.searchParams), 'query') : undefined;
+      let body: unknown;
+      if (opts.body) {
+        let raw: unknown;
+        try {
+          raw = await req.json();
+        } catch {
+          throw new ApiError(400, 'bad_json', 'The request body must be JSON.');
+        }
+        body = parse(opts.body, raw, 'input');
+      }
+      const result = await handler({ req, user, params, query, body } as RouteContext<Infer<P>, Infer<Q>, Infer<B>>);
+      if (result instanceof Response) return result;
+      return NextResponse.json(result ?? { ok: true });
+    } catch (err) {
+      if (err instanceof ApiError) return errorResponse(err);
+      console.error('[fieldmark] route error', req.method, req.nextUrl.pathname, err);
+      return errorResponse(new ApiError(500, 'server_error', 'Something went wrong on the server; nothing was changed. Try again, and tell the lab manager if it persists.'));
+    }
+  };
+}

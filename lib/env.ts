@@ -1,0 +1,40 @@
+import { z } from 'zod';
+
+// Checked once, at first use; scripts/env.sh gives every variable a local default.
+const schema = z.object({
+  DB_HOST: z.string().default('127.0.0.1'),
+  DB_PORT: z.coerce.number().int().positive().default(3407),
+  DB_NAME: z.string().default('fieldmark'),
+  DB_USER: z.string().default('fieldmark'),
+  DB_PASSWORD: z.string().default('fieldmark-local'),
+  DB_SSL: z.enum(['0', '1']).default('0'),
+  S3_ENDPOINT: z.string().optional(),
+  S3_PUBLIC_ENDPOINT: z.string().optional(),
+  S3_BUCKET: z.string().default('fieldmark'),
+  S3_REGION: z.string().default('us-east-1'),
+  S3_ACCESS_KEY_ID: z.string().default('S3RVER'),
+  S3_SECRET_ACCESS_KEY: z.string().default('S3RVER'),
+  SMTP_HOST: z.string().default('127.0.0.1'),
+  SMTP_PORT: z.coerce.number().int().positive().default(1025),
+  SMTP_USER: z.string().optional(),
+  SMTP_PASSWORD: z.string().optional(),
+  SMTP_SECURE: z.enum(['0', '1']).default('0'),
+  MAIL_FROM: z.string().default('Fieldmark <no-reply@fieldmark.local>'),
+  APP_URL: z.string().default('http://localhost:3000'),
+  NEXTAUTH_SECRET: z.string().min(16).default('local-development-secret-change-me-in-production'),
+});
+
+export type Env = z.infer<typeof schema>;
+let cached: Env | undefined;
+
+export function env(): Env {
+  if (!cached) {
+    const parsed = schema.safeParse(process.env);
+    if (!parsed.success) {
+      const fields = parsed.error.issues.map((i) => i.path.join('.')).join(', ');
+      throw new Error(`Invalid environment variables: ${fields} (see .env.example)`);
+    }
+    cached = parsed.data;
+  }
+  return cached;
+}

@@ -1,0 +1,36 @@
+# Sourced by the other scripts. FIELDMARK_PROFILE=dev (default) or test picks
+# ports and a data folder, so a test run never touches the demo's data.
+# Anything already set in the environment (or in .env) wins.
+ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
+export ROOT
+if [ -f "$ROOT/.env" ]; then set -a; . "$ROOT/.env"; set +a; fi
+PROFILE="${FIELDMARK_PROFILE:-dev}"
+export FIELDMARK_PROFILE="$PROFILE"
+if [ "$PROFILE" = test ]; then
+  : "${DB_PORT:=3417}" "${S3_PORT:=4579}" "${SMTP_PORT:=1035}" "${MAIL_WEB_PORT:=1090}" "${PORT:=3100}"
+else
+  : "${DB_PORT:=3407}" "${S3_PORT:=4569}" "${SMTP_PORT:=1025}" "${MAIL_WEB_PORT:=1080}" "${PORT:=3000}"
+fi
+: "${DATA_DIR:=$ROOT/.data/$PROFILE}"
+: "${DB_HOST:=127.0.0.1}" "${DB_NAME:=fieldmark}" "${DB_USER:=fieldmark}" "${DB_PASSWORD:=fieldmark-local}"
+: "${S3_ENDPOINT:=http://127.0.0.1:$S3_PORT}" "${S3_BUCKET:=fieldmark}" "${S3_REGION:=us-east-1}"
+: "${S3_ACCESS_KEY_ID:=S3RVER}" "${S3_SECRET_ACCESS_KEY:=S3RVER}"
+: "${SMTP_HOST:=127.0.0.1}" "${MAIL_FROM:=Fieldmark <no-reply@fieldmark.local>}"
+: "${MAIL_WEB_URL:=http://127.0.0.1:$MAIL_WEB_PORT}"
+: "${APP_URL:=http://localhost:$PORT}"
+: "${NEXTAUTH_URL:=$APP_URL}"
+: "${NEXTAUTH_SECRET:=local-development-secret-change-me-in-production}"
+export DB_PORT S3_PORT SMTP_PORT MAIL_WEB_PORT PORT DATA_DIR DB_HOST DB_NAME DB_USER DB_PASSWORD \
+  S3_ENDPOINT S3_BUCKET S3_REGION S3_ACCESS_KEY_ID S3_SECRET_ACCESS_KEY SMTP_HOST MAIL_FROM \
+  MAIL_WEB_URL APP_URL NEXTAUTH_URL NEXTAUTH_SECRET
+RUN_DIR="$DATA_DIR/run"
+LOG_DIR="$DATA_DIR/log"
+export NEXT_TELEMETRY_DISABLED=1
+
+say() { printf '[fieldmark] %s\n' "$*"; }
+die() { printf '[fieldmark] error: %s\n' "$*" >&2; exit 1; }
+port_open() { (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null; }
+pid_alive() { [ -f "$1" ] && kill -0 "$(cat "$1")" 2>/dev/null; }
+wait_port() { # port seconds
+  local i; for ((i = 0; i < $2 * 10; i++)); do port_open "$1" && return 0; sleep 0.1; done; return 1
+}

@@ -1,0 +1,102 @@
+#!/usr/bin/env bash
+# start | stop | status | reset — MariaDB, the S3 fake and the mail sink, on
+# 127.0.0.1 only, with their data under $DATA_DIR. Starting twice is harmless.
+set -euo pipefail
+. "$(dirname "$0")/env.sh"
+mkdir -p "$RUN_DIR" "$LOG_DIR"
+cmd="${1:-status}"
+
+# --- MariaDB -------------------------------------------------------------
+DB_DIR="$DATA_DIR/mariadb"
+DB_SOCK="$RUN_DIR/mariadb.sock"
+DB_PID="$RUN_DIR/mariadb.pid"
+export DB_SOCKET="$DB_SOCK"
+
+db_ping() { mariadb-admin --no-defaults --socket="$DB_SOCK" -uroot ping >/dev/null 2>&1; }
+
+db_start() {
+  if pid_alive "$DB_PID" && db_ping; then say "MariaDB already up on 127.0.0.1:$DB_PORT"; return; fi
+  rm -f "$DB_PID" "$DB_SOCK"
+  port_open "$DB_PORT" && die "port $DB_PORT is taken by another program; set DB_PORT to a free port (see .env.example)"
+  if [ ! -f "$DB_DIR/.initialised" ]; then
+    # A folder left half-made by an interrupted first start is made again.
+    rm -rf "$DB_DIR"; mkdir -p "$DB_DIR"
+    say "initialising MariaDB data folder $DB_DIR"
+    mariadb-install-db --no-defaults --datadir="$DB_DIR" --user=root \
+      --auth-root-authentication-method=socket --skip-test-db --skip-name-resolve \
+      --innodb-log-file-size=16M >"$LOG_DIR/mariadb-install.log" 2>&1 \
+      || die "mariadb-install-db failed; see $LOG_DIR/mariadb-install.log"
+    touch "$DB_DIR/.initialised"
+  fi
+  setsid mariadbd --no-defaults --datadir="$DB_DIR" --user=root --bind-address=127.0.0.1 \
+    --port="$DB_PORT" --socket="$DB_SOCK" --pid-file="$DB_PID" --log-error="$LOG_DIR/mariadb.log" \
+    --skip-name-resolve --open-files-limit=4096 --character-set-server=utf8mb4 \
+    --collation-server=utf8mb4_unicode_ci --innodb-log-file-size=16M --max-connections=300 \
+    </dev/null >/dev/null 2>&1 &
+  local i; for ((i = 0; i < 300; i++)); do db_ping && break; sleep 0.1; done
+  db_ping || die "MariaDB did not start; see $LOG_DIR/mariadb.log"
+  mariadb --no-defaults --socket="$DB_SOCK" -uroot <<SQL
+CREATE DATABASE IF NOT EXISTS \`$DB_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
+CREATE USER IF NOT EXISTS '$DB_USER'@'127.0.0.1' IDENTIFIED BY '$DB_PASSWORD';
+CREATE USER IF NOT EXISTS '$DB_USER'@'localhost' IDENTIFIED BY '$DB_PASSWORD';
+GRANT ALL PRIVILEGES ON \`$DB_NAME\`.* TO '$DB_USER'@'127.0.0.1';
+GRANT ALL PRIVILEGES ON \`$DB_NAME\`.* TO '$DB_USER'@'localhost';
+GRANT ALL PRIVILEGES ON \`${DB_NAME}_%\`.* TO '$DB_USER'@'127.0.0.1';
+FLUSH PRIVILEGES;
+SQL
+  say "MariaDB up on 127.0.0.1:$DB_PORT (data $DB_DIR)"
+}
+
+db_stop() {
+  if db_ping; then
+    mariadb-admin --no-defaults --socket="$DB_SOCK" -uroot shutdown >/dev/null 2>&1 || true
+    local i; for ((i = 0; i < 100; i++)); do pid_alive "$DB_PID" || break; sleep 0.1; done
+  fi
+  rm -f "$DB_PID"; say "MariaDB stopped"
+}
+
+# --- node services (S3 fake, mail sink) ------------------------------------
+node_start() { # name port pidfile command...
+  local name=$1 port=$2 pidf=$3; shift 3
+  if pid_alive "$pidf" && port_open "$port"; then say "$name already up on 127.0.0.1:$port"; return; fi
+  rm -f "$pidf"
+  port_open "$port" && die "port $port is taken by another program; $name cannot start (set its port in .env, see .env.example)"
+  setsid "$@" </dev/null >>"$LOG_DIR/$name.log" 2>&1 &
+  echo $! >"$pidf"
+  wait_port "$port" 30 || die "$name did not start; see $LOG_DIR/$name.log"
+  say "$name up on 127.0.0.1:$port"
+}
+node_stop() { # name pidfile
+  if pid_alive "$2"; then kill "$(cat "$2")" 2>/dev/null || true
+    local i; for ((i = 0; i < 50; i++)); do pid_alive "$2" || break; sleep 0.1; done
+    pid_alive "$2" && kill -9 "$(cat "$2")" 2>/dev/null || true
+  fi
+  rm -f "$2"; say "$1 stopped"
+}
+
+s3_start() {
+  mkdir -p "$DATA_DIR/s3"
+  # s3rver's listings need the legacy OpenSSL provider on Node 17+; it runs as its own process.
+  NODE_OPTIONS=--openssl-legacy-provider S3_DIR="$DATA_DIR/s3" \
+    node_start s3-fake "$S3_PORT" "$RUN_DIR/s3.pid" node "$ROOT/storage/s3rver.mjs"
+}
+mail_start() {
+  mkdir -p "$DATA_DIR/mail"
+  node_start mail-sink "$MAIL_WEB_PORT" "$RUN_DIR/mail.pid" "$ROOT/node_modules/.bin/maildev" \
+    --ip 127.0.0.1 --web-ip 127.0.0.1 -s "$SMTP_PORT" -w "$MAIL_WEB_PORT" \
+    --mail-directory "$DATA_DIR/mail" --hide-extensions STARTTLS
+  wait_port "$SMTP_PORT" 10 || die "mail sink SMTP port $SMTP_PORT did not open"
+}
+
+status_line() { if eval "$2"; then say "$1: up"; else say "$1: down"; fi; }
+
+case "$cmd" in
+  start) db_start; s3_start; mail_start ;;
+  stop) node_stop mail-sink "$RUN_DIR/mail.pid"; node_stop s3-fake "$RUN_DIR/s3.pid"; db_stop ;;
+  status)
+    status_line "MariaDB 127.0.0.1:$DB_PORT" db_ping
+    status_line "S3 fake 127.0.0.1:$S3_PORT" "port_open $S3_PORT"
+    status_line "mail sink 127.0.0.1:$SMTP_PORT (web $MAIL_WEB_PORT)" "port_open $MAIL_WEB_PORT" ;;
+  reset) "$0" stop; rm -rf "$DATA_DIR"; say "removed $DATA_DIR" ;;
+  *) die "usage: services.sh start|stop|status|reset" ;;
+esac

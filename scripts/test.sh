@@ -1,0 +1,41 @@
+#!/usr/bin/env bash
+# npm test: the same set-up as npm start, on throw-away data folders and ports
+# (profile "test"), then unit, integration and browser tests against the real services.
+set -uo pipefail
+export FIELDMARK_PROFILE=test
+. "$(dirname "$0")/env.sh"
+cd "$ROOT"
+t0=$(date +%s)
+RESULTS="$DATA_DIR/../test-results"
+export NEXT_DIST_DIR=.next-test
+app_pid=
+
+cleanup() {
+  [ -n "$app_pid" ] && kill "$app_pid" 2>/dev/null
+  bash scripts/services.sh stop >/dev/null 2>&1
+}
+trap cleanup EXIT
+
+bash scripts/install.sh || exit 1
+bash scripts/services.sh reset >/dev/null
+bash scripts/services.sh start || exit 1
+mkdir -p "$RESULTS" "$LOG_DIR"
+npx tsx scripts/db.ts migrate || exit 1
+npx tsx scripts/db.ts seed || exit 1
+
+say "building the app for the browser and HTTP tests"
+if ! npx next build >"$LOG_DIR/build.log" 2>&1; then tail -60 "$LOG_DIR/build.log"; die "build failed"; fi
+port_open "$PORT" && die "port $PORT is taken; set PORT for the test run"
+npx next start -H 127.0.0.1 -p "$PORT" >"$LOG_DIR/app.log" 2>&1 &
+app_pid=$!
+wait_port "$PORT" 60 || { tail -40 "$LOG_DIR/app.log"; die "the app did not start"; }
+
+status=0
+say "unit and integration tests (vitest)"
+npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS/vitest.json" || status=1
+say "browser tests (Playwright, Debian chromium)"
+npx playwright test 2>&1 | tee "$LOG_DIR/playwright.out" || status=1
+[ "${PIPESTATUS[0]}" = 0 ] || status=1
+node scripts/summarise-tests.mjs "$RESULTS" || status=1
+say "test run took $(( $(date +%s) - t0 )) s"
+exit $status

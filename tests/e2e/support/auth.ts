@@ -1,0 +1,18 @@
+import { expect, type Page } from '@playwright/test';
+
+export const DEMO_PASSWORD = 'quillfield-demo';
+export const USERS = {
+  tech: 'tech@quillfield.example',
+  reader: 'reader@quillfield.example',
+  vet: 'vet@quillfield.example',
+  manager: 'manager@quillfield.example',
+  owner: 'owner@quillfield.example',
+};
+
+export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByRole('button', { name: 'Sign out' })).toBeVisible();
+}

@@ -1,0 +1,72 @@
+// An HTTP client that signs in through next-auth's credentials flow and keeps the cookies.
+export const APP_URL = process.env.APP_URL ?? 'http://localhost:3100';
+export const DEMO_PASSWORD = 'quillfield-demo';
+
+export class Session {
+  private cookies = new Map<string, string>();
+
+  private store(res: Response) {
+    for (const c of res.headers.getSetCookie()) {
+      const [pair] = c.split(';');
+      const i = pair.indexOf('=');
+      this.cookies.set(pair.slice(0, i), pair.slice(i + 1));
+    }
+  }
+
+  get cookieHeader() {
+    return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
+  }
+
+  async fetch(path: string, init: RequestInit = {}): Promise<Response> {
+    const headers = new Headers(init.headers);
+    if (this.cookies.size) headers.set('cookie', this.cookieHeader);
+    const res = await fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
+    this.store(res);
+    return res;
+  }
+
+  async json<T = any>(path: string, method = 'GET', body?: unknown, headers: Record<string, string> = {}): Promise<{ status: number; body: T }> {
+    const res = await this.fetch(path, {
+      method,
+      headers: body === undefined ? headers : { 'content-type': 'application/json', ...headers },
+      body: body === undefined ? undefined : typeof body === 'string' ? body : JSON.stringify(body),
+    });
+    const text = await res.text();
+    let parsed: unknown = null;
+    try {
+      parsed = text ? JSON.parse(text) : null;
+    } catch {
+      parsed = text;
+    }
+    return { status: res.status, body: parsed as T };
+  }
+
+  /** Returns the error code next-auth reported, or null when signed in. */
+  async signIn(email: string, password = DEMO_PASSWORD, address?: string): Promise<string | null> {
+    const csrf = await this.json<{ csrfToken: string }>('/api/auth/csrf');
+    const form = new URLSearchParams({ csrfToken: csrf.body.csrfToken, email, password, json: 'true' });
+    const res = await this.fetch('/api/auth/callback/credentials', {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded', ...(address ? { 'x-forwarded-for': address } : {}) },
+      body: form.toString(),
+    });
+    const location = res.headers.get('location') ?? '';
+    const error = new URL(location, APP_URL).searchParams.get('error');
+    return error;
+  }
+}
+
+export async function signedIn(email: string): Promise<Session> {
+  const s = new Session();
+  const err = await s.signIn(email);
+  if (err) throw new Error(`sign-in as ${email} failed: ${err}`);
+  return s;
+}
+
+export const USERS = {
+  tech: 'tech@quillfield.example',
+  reader: 'reader@quillfield.example',
+  vet: 'vet@quillfield.example',
+  manager: 'manager@quillfield.example',
+  owner: 'owner@quillfield.example',
+};
