@@ -13,7 +13,8 @@ export function knexConfig(database?: string): Knex.Config {
       database: database ?? e.DB_NAME,
       charset: 'utf8mb4',
       timezone: 'Z',
-      dateStrings: false,
+      // DATE columns (calendar days) stay 'YYYY-MM-DD' strings; no time zone can shift them.
+      typeCast: (field: { type: string; string: () => string | null }, next: () => unknown) => (field.type === 'DATE' ? field.string() : next()),
       ssl: e.DB_SSL === '1' ? { rejectUnauthorized: true } : undefined,
       // DECIMAL columns come back as numbers, not strings.
       decimalNumbers: true,

@@ -14,7 +14,10 @@ if [ ${#need[@]} -gt 0 ]; then
   DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq --no-install-recommends "${need[@]}" >/dev/null
 fi
 cd "$ROOT"
-if [ ! -d node_modules ] || [ package-lock.json -nt node_modules/.package-lock.json ]; then
+# A stamp of the lock file's hash tells whether node_modules matches it (mtimes lie after a clone).
+lock_hash=$(sha256sum package-lock.json | cut -d' ' -f1)
+if [ "$(cat node_modules/.fieldmark-lock 2>/dev/null)" != "$lock_hash" ]; then
   say "installing npm packages (npm ci)"
   npm ci --no-audit --no-fund --loglevel=error
+  echo "$lock_hash" > node_modules/.fieldmark-lock
 fi

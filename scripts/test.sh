@@ -32,7 +32,7 @@ wait_port "$PORT" 60 || { tail -40 "$LOG_DIR/app.log"; die "the app did not star
 
 status=0
 say "unit and integration tests (vitest)"
-npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS/vitest.json" || status=1
+NODE_OPTIONS="--import tsx" npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS/vitest.json" || status=1
 say "browser tests (Playwright, Debian chromium)"
 npx playwright test 2>&1 | tee "$LOG_DIR/playwright.out" || status=1
 [ "${PIPESTATUS[0]}" = 0 ] || status=1

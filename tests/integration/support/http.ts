@@ -50,9 +50,9 @@ export class Session {
       headers: { 'content-type': 'application/x-www-form-urlencoded', ...(address ? { 'x-forwarded-for': address } : {}) },
       body: form.toString(),
     });
-    const location = res.headers.get('location') ?? '';
-    const error = new URL(location, APP_URL).searchParams.get('error');
-    return error;
+    // With json=true next-auth answers { url }; without it, a redirect. Either carries ?error=.
+    const location = res.headers.get('content-type')?.includes('json') ? ((await res.json()) as { url: string }).url : (res.headers.get('location') ?? '');
+    return new URL(location, APP_URL).searchParams.get('error');
   }
 }
 

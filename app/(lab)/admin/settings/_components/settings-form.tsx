@@ -1,0 +1,37 @@
+'use client';
+
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import type { z } from 'zod';
+import { describedBy, Field } from '@/components/ui/field';
+import { useApiForm } from '@/lib/hooks/use-api-form';
+import { LAB_SETTINGS_FIELDS, labSettingsSchema, type LabSettings } from '@/lib/settings/lab-settings';
+
+export function SettingsForm({ initial, defaults }: { initial: LabSettings; defaults: LabSettings }) {
+  const form = useForm<z.input<typeof labSettingsSchema>, unknown, LabSettings>({ resolver: zodResolver(labSettingsSchema), defaultValues: initial });
+  const { send, formError } = useApiForm(form);
+  const [saved, setSaved] = useState(false);
+  const e = form.formState.errors;
+
+  async function onSubmit(v: LabSettings) {
+    setSaved(false);
+    if (await send('/api/settings', 'PUT', v)) setSaved(true);
+  }
+
+  return (
+    <form onSubmit={form.handleSubmit(onSubmit)} noValidate className="card space-y-4">
+      {LAB_SETTINGS_FIELDS.map((f) => {
+        const error = e[f.key]?.message as string | undefined;
+        return (
+          <Field key={f.key} id={f.key} label={`${f.label} (${f.unit})`} error={error} hint={`Default ${defaults[f.key]} — ${f.source}`}>
+            <input id={f.key} type="number" step="any" className="input max-w-48" {...describedBy(f.key, error)} {...form.register(f.key)} />
+          </Field>
+        );
+      })}
+      {formError && <p role="alert" className="rounded-md bg-danger-bg px-3 py-2 text-sm text-danger">{formError}</p>}
+      {saved && <p role="status" className="rounded-md bg-ok-bg px-3 py-2 text-sm text-ok">Settings saved.</p>}
+      <button type="submit" className="btn" disabled={form.formState.isSubmitting}>Save settings</button>
+    </form>
+  );
+}

@@ -1,0 +1,133 @@
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { collectionsAround, getCollection } from '@/db/queries/collections';
+import { getLabSettings } from '@/db/queries/settings';
+import { STAFF_ROLES } from '@/lib/auth/roles';
+import { requirePageUser } from '@/lib/auth/session';
+import { billions, fmt, fmtDateTime } from '@/lib/format';
+import { soundnessForCollection, summariseCollection } from '@/lib/semen/summary';
+import { OPTICS, PREPARATIONS } from '@/lib/validations/collection';
+
+export const metadata = { title: 'Collection' };
+
+const DOSE_LABEL = { fresh: 'Fresh', cooled: 'Cooled, shipped', frozen: 'Frozen' } as const;
+
+export default async function CollectionPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePageUser(STAFF_ROLES);
+  const { id } = await params;
+  if (!/^\d+$/.test(id)) notFound();
+  const c = await getCollection(Number(id)).catch(() => null);
+  if (!c) notFound();
+  const [settings, around] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt))]);
+  // % normal comes from the settled morphology read once scoring exists for this collection.
+  const normalPct: number | null = null;
+  const s = summariseCollection(c, settings, normalPct);
+  const bse = soundnessForCollection(
+    c.id,
+    around.map((a) => ({ id: a.id, collectedAt: a.collectedAt, pmmnBillion: a.id === c.id ? s.totals?.pmmnBillion ?? null : null })),
+    settings,
+  );
+
+  return (
+    <div className="space-y-6">
+      <div className="flex flex-wrap items-start justify-between gap-3">
+        <div>
+          <p className="text-sm text-ink-soft"><Link href={`/stallions/${c.stallionId}`}>{c.stallion}</Link></p>
+          <h1>Collection of {fmtDateTime(c.collectedAt)}</h1>
+          <p className="text-sm text-ink-soft">
+            Ejaculate {c.numberThatDay} of that day ·{' '}
+            {c.daysSincePrevious == null ? 'first collection on record' : `${fmt(c.daysSincePrevious)} days since the previous collection`} · recorded by {c.recordedBy}
+            {c.collectedBy ? ` · collected by ${c.collectedBy}` : ''}
+          </p>
+        </div>
+        <Link href={`/collections/${c.id}/edit`} className="btn-secondary no-underline hover:no-underline">Edit</Link>
+      </div>
+
+      {s.warnings.length > 0 && (
+        <ul aria-label="Warnings" className="space-y-1 rounded-md bg-warn-bg px-4 py-3 text-sm text-warn">
+          {s.warnings.map((w) => <li key={w.field + w.message}>⚠ {w.message}.</li>)}
+        </ul>
+      )}
+
+      <div className="grid gap-4 lg:grid-cols-2">
+        <section aria-labelledby="params" className="card">
+          <h2 id="params" className="mb-3">Semen parameters</h2>
+          <dl className="grid grid-cols-2 gap-x-4 gap-y-2 text-sm">
+            <dt className="text-ink-soft">Gel-free volume</dt><dd>{fmt(c.volumeMl)} mL</dd>
+            <dt className="text-ink-soft">Concentration</dt>
+            <dd>
+              {fmt(c.concentrationMillionPerMl)} × 10⁶/mL
+              {c.concentrationMethod === 'chamber' && (
+                <span className="block text-xs text-ink-faint">
+                  counting chamber: 1:{c.chamberDilution}, {c.chamberSquares} squares, counts {c.chamberCount1} and {c.chamberCount2}
+                </span>
+              )}
+            </dd>
+            <dt className="text-ink-soft">Total motility</dt><dd>{fmt(c.totalMotilityPct, 0)} %</dd>
+            <dt className="text-ink-soft">Progressive motility</dt><dd>{fmt(c.progressiveMotilityPct, 0)} %</dd>
+            <dt className="text-ink-soft">Preparation</dt><dd>{PREPARATIONS[c.preparation]}, {OPTICS[c.optics]}, {c.magnification}×</dd>
+          </dl>
+          {c.remarks && <p className="mt-3 whitespace-pre-wrap text-sm"><span className="text-ink-soft">Remarks: </span>{c.remarks}</p>}
+        </section>
+
+        <section aria-labelledby="arith" className="card">
+          <h2 id="arith" className="mb-3">Sperm numbers</h2>
+          {s.totals ? (
+            <dl className="grid grid-cols-2 gap-x-4 gap-y-2 text-sm">
+              <dt className="text-ink-soft">Total sperm</dt><dd data-testid="total-sperm">{billions(s.totals.totalSpermBillion)}</dd>
+              <dt className="text-ink-soft">Total motile</dt><dd>{billions(s.totals.totalMotileBillion)}</dd>
+              <dt className="text-ink-soft">Progressively motile (PMS)</dt><dd data-testid="pms">{billions(s.totals.progressivelyMotileBillion)}</dd>
+              <dt className="text-ink-soft">Progressively motile, morphologically normal (PMMN)</dt>
+              <dd>{s.totals.pmmnBillion == null ? <span className="text-ink-faint">waiting for the morphology read</span> : billions(s.totals.pmmnBillion)}</dd>
+            </dl>
+          ) : (
+            <p className="text-sm text-ink-soft">Missing {s.missing.join(', ')}: the numbers appear once they are recorded.</p>
+          )}
+        </section>
+      </div>
+
+      {s.totals && (
+        <section aria-labelledby="doses" className="card overflow-x-auto">
+          <h2 id="doses" className="mb-3">Insemination doses</h2>
+          <table>
+            <thead>
+              <tr><th className="th">Kind</th><th className="th">Dose size (lab setting)</th><th className="th">Whole doses</th><th className="th">Left over</th></tr>
+            </thead>
+            <tbody>
+              {s.doses.map((d) => (
+                <tr key={d.kind}>
+                  <td className="td">{DOSE_LABEL[d.kind]}</td>
+                  <td className="td">{billions(d.sizeBillion)} {d.basis === 'progressive' ? 'progressively motile' : 'total'} sperm</td>
+                  <td className="td font-medium">{d.doses}</td>
+                  <td className="td">{billions(d.remainderBillion)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          <p className="mt-2 text-xs text-ink-faint">Dose sizes are set by the lab manager under Lab settings.</p>
+        </section>
+      )}
+
+      <section aria-labelledby="bse" className="card">
+        <h2 id="bse" className="mb-2">Breeding soundness (second of two ejaculates)</h2>
+        {bse.role === 'second' ? (
+          bse.result.status === 'unknown' ? (
+            <p className="text-sm">Second ejaculate, {Math.round(bse.gapMinutes)} min after <Link href={`/collections/${bse.firstId}`}>the first</Link>. The check needs PMMN: waiting for the morphology read.</p>
+          ) : (
+            <p className="text-sm">
+              PMMN {billions(bse.result.pmmnBillion)} against the lab’s threshold of {billions(bse.result.thresholdBillion)}:{' '}
+              <strong className={bse.result.passes ? 'text-ok' : 'text-danger'}>{bse.result.passes ? 'meets the threshold' : 'below the threshold'}</strong>.
+            </p>
+          )
+        ) : bse.role === 'first' ? (
+          <p className="text-sm">First of a pair; the check applies to <Link href={`/collections/${bse.secondId}`}>the second ejaculate</Link> ({Math.round(bse.gapMinutes)} min later).</p>
+        ) : (
+          <p className="text-sm text-ink-soft">Not part of a pair collected about {settings.pairGapMinutes} min apart, so no breeding-soundness check applies.</p>
+        )}
+        <p className="mt-2 text-xs text-ink-faint">
+          Figures support, and never replace, a veterinarian’s judgement; breeding decisions follow local regulations and licensed veterinary practice.
+        </p>
+      </section>
+    </div>
+  );
+}

@@ -1,0 +1,25 @@
+import { notFound } from 'next/navigation';
+import { StallionForm } from '@/components/forms/stallion-form';
+import { clientOptions } from '@/db/queries/clients';
+import { getStallion } from '@/db/queries/stallions';
+import { requirePageUser } from '@/lib/auth/session';
+
+export const metadata = { title: 'Edit stallion' };
+
+export default async function EditStallionPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser();
+  const { id } = await params;
+  if (!/^\d+$/.test(id)) notFound();
+  const s = await getStallion(user, Number(id)).catch(() => null);
+  if (!s) notFound();
+  return (
+    <div className="space-y-4">
+      <h1>Edit {s.name}</h1>
+      <StallionForm
+        clients={await clientOptions()}
+        stallionId={s.id}
+        initial={{ name: s.name, registration: s.registration, breed: s.breed, foalingYear: s.foalingYear, clientId: s.clientId, notes: s.notes }}
+      />
+    </div>
+  );
+}

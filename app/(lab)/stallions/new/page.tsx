@@ -1,0 +1,13 @@
+import { StallionForm } from '@/components/forms/stallion-form';
+import { clientOptions } from '@/db/queries/clients';
+
+export const metadata = { title: 'New stallion' };
+
+export default async function NewStallionPage() {
+  return (
+    <div className="space-y-4">
+      <h1>New stallion</h1>
+      <StallionForm clients={await clientOptions()} />
+    </div>
+  );
+}

@@ -1,0 +1,16 @@
+import Link from 'next/link';
+import { StallionsTable } from './_components/stallions-table';
+
+export const metadata = { title: 'Stallions' };
+
+export default function StallionsPage() {
+  return (
+    <div className="space-y-4">
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <h1>Stallions</h1>
+        <Link href="/stallions/new" className="btn no-underline hover:no-underline">New stallion</Link>
+      </div>
+      <StallionsTable />
+    </div>
+  );
+}

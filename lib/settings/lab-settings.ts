@@ -1,0 +1,52 @@
+import { z } from 'zod';
+import { BREEDING_SOUNDNESS_PMMN_THRESHOLD_BILLION, DOSE_DEFAULTS, EJACULATE_PAIR_GAP_DEFAULT } from '@/lib/semen/arithmetic';
+import { DEFAULT_TARGET_CELLS } from '@/lib/morphology/tally';
+import { EPIDIDYMAL_TRANSIT_DAYS_DEFAULT, SPERMATOGENESIS_DAYS_DEFAULT } from '@/lib/windows/window';
+
+const num = (label: string, min: number, max: number) =>
+  z.coerce.number({ error: `${label} must be a number.` }).min(min, `${label} must be at least ${min}.`).max(max, `${label} must be at most ${max}.`);
+const int = (label: string, min: number, max: number) => num(label, min, max).int(`${label} must be a whole number.`);
+
+/** A lab's own choices; each default and where it comes from is shown on the settings page. */
+export const labSettingsSchema = z.object({
+  freshDoseBillion: num('Fresh dose', 0.05, 10),
+  cooledDoseBillion: num('Cooled dose', 0.05, 10),
+  frozenDoseBillion: num('Frozen dose', 0.05, 10),
+  bseThresholdBillion: num('Breeding-soundness threshold', 0.1, 20),
+  pairGapMinutes: int('Gap between the two ejaculates', 10, 240),
+  pairToleranceMinutes: int('Gap tolerance', 0, 120),
+  targetCells: int('Target cell count', 50, 1000),
+  spermatogenesisDays: int('Spermatogenesis', 30, 90),
+  epididymalTransitDays: int('Epididymal transit', 0, 30),
+});
+export type LabSettings = z.infer<typeof labSettingsSchema>;
+
+export const LAB_SETTINGS_DEFAULTS: LabSettings = {
+  freshDoseBillion: DOSE_DEFAULTS.fresh.sizeBillion,
+  cooledDoseBillion: DOSE_DEFAULTS.cooled.sizeBillion,
+  frozenDoseBillion: DOSE_DEFAULTS.frozen.sizeBillion,
+  bseThresholdBillion: BREEDING_SOUNDNESS_PMMN_THRESHOLD_BILLION,
+  pairGapMinutes: EJACULATE_PAIR_GAP_DEFAULT.targetMinutes,
+  pairToleranceMinutes: EJACULATE_PAIR_GAP_DEFAULT.toleranceMinutes,
+  targetCells: DEFAULT_TARGET_CELLS,
+  spermatogenesisDays: SPERMATOGENESIS_DAYS_DEFAULT,
+  epididymalTransitDays: EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
+};
+
+export const LAB_SETTINGS_FIELDS: { key: keyof LabSettings; label: string; unit: string; source: string }[] = [
+  { key: 'freshDoseBillion', label: 'Fresh insemination dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.fresh.source },
+  { key: 'cooledDoseBillion', label: 'Cooled-shipped dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.cooled.source },
+  { key: 'frozenDoseBillion', label: 'Frozen dose', unit: '10^9 total sperm', source: DOSE_DEFAULTS.frozen.source },
+  { key: 'bseThresholdBillion', label: 'Breeding soundness: PMMN in the second ejaculate at least', unit: '10^9', source: 'Society for Theriogenology criterion, as summarised in equine theriogenology texts' },
+  { key: 'pairGapMinutes', label: 'Gap between the two ejaculates', unit: 'minutes', source: 'About one hour (Society for Theriogenology protocol); the tolerance is our default' },
+  { key: 'pairToleranceMinutes', label: 'Gap tolerance', unit: '± minutes', source: 'Fieldmark default' },
+  { key: 'targetCells', label: 'Target cells per collection', unit: 'cells', source: 'Common practice: 100–200 per sample for stallions' },
+  { key: 'spermatogenesisDays', label: 'Spermatogenesis', unit: 'days', source: 'About 57 days (Swierstra, Gebauer & Pickett 1974, from memory)' },
+  { key: 'epididymalTransitDays', label: 'Epididymal transit', unit: 'days', source: 'Gebauer, Pickett & Swierstra 1974: at least 4.9, on average 7.5–11 days' },
+];
+
+/** Stored values win over defaults; unknown or invalid stored keys fall back to the default. */
+export function mergeLabSettings(stored: unknown): LabSettings {
+  const partial = labSettingsSchema.partial().safeParse(stored ?? {});
+  return { ...LAB_SETTINGS_DEFAULTS, ...(partial.success ? Object.fromEntries(Object.entries(partial.data).filter(([, v]) => v !== undefined)) : {}) };
+}
