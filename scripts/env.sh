@@ -7,7 +7,8 @@ if [ -f "$ROOT/.env" ]; then set -a; . "$ROOT/.env"; set +a; fi
 PROFILE="${FIELDMARK_PROFILE:-dev}"
 export FIELDMARK_PROFILE="$PROFILE"
 if [ "$PROFILE" = test ]; then
-  : "${DB_PORT:=3417}" "${S3_PORT:=4579}" "${SMTP_PORT:=1035}" "${MAIL_WEB_PORT:=1090}" "${PORT:=3100}"
+  : "${DB_PORT:=3417}" "${S3_PORT:=4579}" "${SMTP_PORT:=1035}" "${MAIL_WEB_PORT:=1090}" "${PORT:=3100}" "${UPLOAD_MAX_MB:=8}"
+  export UPLOAD_MAX_MB
 else
   : "${DB_PORT:=3407}" "${S3_PORT:=4569}" "${SMTP_PORT:=1025}" "${MAIL_WEB_PORT:=1080}" "${PORT:=3000}"
 fi

@@ -11,7 +11,7 @@ export NEXT_DIST_DIR=.next-test
 app_pid=
 
 cleanup() {
-  [ -n "$app_pid" ] && kill "$app_pid" 2>/dev/null
+  [ -n "$app_pid" ] && kill -- "-$app_pid" 2>/dev/null
   bash scripts/services.sh stop >/dev/null 2>&1
 }
 trap cleanup EXIT
@@ -26,7 +26,8 @@ npx tsx scripts/db.ts seed || exit 1
 say "building the app for the browser and HTTP tests"
 if ! npx next build >"$LOG_DIR/build.log" 2>&1; then tail -60 "$LOG_DIR/build.log"; die "build failed"; fi
 port_open "$PORT" && die "port $PORT is taken; set PORT for the test run"
-npx next start -H 127.0.0.1 -p "$PORT" >"$LOG_DIR/app.log" 2>&1 &
+# Its own process group, so the cleanup stops the server and every child it started.
+setsid npx next start -H 127.0.0.1 -p "$PORT" >"$LOG_DIR/app.log" 2>&1 &
 app_pid=$!
 wait_port "$PORT" 60 || { tail -40 "$LOG_DIR/app.log"; die "the app did not start"; }
 

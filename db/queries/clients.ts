@@ -1,5 +1,6 @@
 import 'server-only';
 import { db } from '@/db/knex';
+import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -17,7 +18,7 @@ const SORT_COLUMNS = { name: 'c.name', kind: 'c.kind', email: 'c.email', stallio
 
 export async function listClients(q: { page: number; pageSize: number; sort: keyof typeof SORT_COLUMNS; dir: 'asc' | 'desc'; q?: string }): Promise<Page<Client>> {
   const base = db('clients as c').modify((b) => {
-    if (q.q) b.where((w) => w.whereLike('c.name', `%${q.q}%`).orWhereLike('c.email', `%${q.q}%`));
+    if (q.q) whereContains(b, ['c.name', 'c.email'], q.q);
   });
   const [{ n }] = await base.clone().count({ n: '*' });
   const rows = await base

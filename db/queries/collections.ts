@@ -1,6 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/db/knex';
+import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { ApiError, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -31,6 +32,8 @@ export type Collection = {
   remarks: string | null;
   /** Days since this stallion's previous collection (fractional), null for his first. */
   daysSincePrevious: number | null;
+  /** Sperm cells marked in the first read and % normal among them (null before any mark). */
+  firstRead: { cells: number; pctNormal: number | null; status: 'open' | 'submitted' } | null;
 };
 
 const DAY_MS = 864e5;
@@ -60,6 +63,9 @@ function toCollection(r: Record<string, any>): Collection {
     recordedBy: r.recorded_by_name,
     remarks: r.remarks,
     daysSincePrevious: prev ? Math.round(((at.getTime() - prev.getTime()) / DAY_MS) * 10) / 10 : null,
+    firstRead: r.first_status
+      ? { cells: Number(r.first_cells ?? 0), pctNormal: r.first_cells > 0 ? (Number(r.first_normal) / Number(r.first_cells)) * 100 : null, status: r.first_status }
+      : null,
   };
 }
 
@@ -73,7 +79,14 @@ function selectCollections(k: Knex | Knex.Transaction = db) {
       'u.name as recorded_by_name',
       // Backed by the (stallion_id, collected_at) index.
       k.raw('(select max(p.collected_at) from collections p where p.stallion_id = k.stallion_id and p.collected_at < k.collected_at) as previous_at'),
-    );
+      'fr.status as first_status',
+      // Totals straight from MariaDB: flags stored on each mark make them plain sums.
+      k.raw('(select sum(m.counts_as_sperm) from marks m where m.read_id = fr.id and m.deleted = 0) as first_cells'),
+      k.raw('(select sum(m.is_normal) from marks m where m.read_id = fr.id and m.deleted = 0) as first_normal'),
+    )
+    .leftJoin('reads as fr', function () {
+      this.on('fr.collection_id', 'k.id').andOn('fr.kind', k.raw('?', ['first']));
+    });
 }
 
 const SORT_COLUMNS = {
@@ -92,7 +105,7 @@ export async function listCollections(q: {
     if (q.stallionId) b.where('k.stallion_id', q.stallionId);
     if (q.from) b.where('k.collected_at', '>=', new Date(`${q.from}T00:00:00Z`));
     if (q.to) b.where('k.collected_at', '<', new Date(new Date(`${q.to}T00:00:00Z`).getTime() + DAY_MS));
-    if (q.q) b.where((w) => w.whereLike('s.name', `%${q.q}%`).orWhereLike('k.remarks', `%${q.q}%`).orWhereLike('k.collected_by', `%${q.q}%`));
+    if (q.q) whereContains(b, ['s.name', 'k.remarks', 'k.collected_by'], q.q);
     return b;
   };
   const [{ n }] = await filter(db('collections as k').join('stallions as s', 's.id', 'k.stallion_id')).count({ n: '*' });

@@ -1,6 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/db/knex';
+import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { ApiError, conflict, forbidden, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -46,7 +47,7 @@ export async function listStallions(
   const filter = (b: Knex.QueryBuilder) => {
     visibleStallions(user, b);
     if (q.clientId) b.where('s.client_id', q.clientId);
-    if (q.q) b.where((w) => w.whereLike('s.name', `%${q.q}%`).orWhereLike('s.registration', `%${q.q}%`).orWhereLike('s.breed', `%${q.q}%`).orWhereLike('c.name', `%${q.q}%`));
+    if (q.q) whereContains(b, ['s.name', 's.registration', 's.breed', 'c.name'], q.q);
     return b;
   };
   const [{ n }] = await filter(db('stallions as s').join('clients as c', 'c.id', 's.client_id')).count({ n: '*' });

@@ -28,7 +28,7 @@ export function navFor(role: Role): NavItem[] {
     { href: '/clients', label: 'Clients' },
   ];
   if (role === 'lab_manager') {
-    items.push({ href: '/admin/users', label: 'Users' }, { href: '/admin/settings', label: 'Lab settings' });
+    items.push({ href: '/admin/users', label: 'Users' }, { href: '/admin/class-sets', label: 'Class sets' }, { href: '/admin/settings', label: 'Lab settings' });
   }
   items.push({ href: '/help', label: 'Help and safety' });
   return items;

@@ -5,7 +5,8 @@ test('a technician records a collection through the form and sees the arithmetic
   await signIn(page, USERS.tech);
   await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Collections' }).click();
   await page.getByRole('link', { name: 'Record a collection' }).click();
-  const stallion = page.getByLabel('Stallion');
+  await expect(page.getByRole('heading', { name: 'Record a collection' })).toBeVisible();
+  const stallion = page.getByLabel('Stallion', { exact: true });
   await stallion.selectOption({ index: 1 });
   const stallionName = (await stallion.locator('option:checked').textContent())!.trim();
 
@@ -39,7 +40,7 @@ test('a technician records a collection through the form and sees the arithmetic
 test('an unusual value is accepted with a visible warning', async ({ page }) => {
   await signIn(page, USERS.tech);
   await page.goto('/collections/new');
-  await page.getByLabel('Stallion').selectOption({ index: 1 });
+  await page.getByLabel('Stallion', { exact: true }).selectOption({ index: 1 });
   await page.getByLabel('Gel-free volume (mL)').fill('250');
   await expect(page.getByText(/Volume above 200 mL is unusual/)).toBeVisible();
   await page.getByLabel('Concentration (10⁶/mL)').fill('100');

@@ -16,7 +16,8 @@ describe('collections API', () => {
     expect(r2.body.collection.numberThatDay).toBe(2);
     expect(r2.body.collection.daysSincePrevious).toBe(0);
     const r3 = await s.json('/api/collections', 'POST', goodCollection(st.id, { collectedAt: '2026-06-04T09:00:00.000Z' }));
-    expect(r3.body.collection.daysSincePrevious).toBe(2.9);
+    // 2026-06-01 10:00 → 06-04 09:00 is 2.96 days, shown to one decimal.
+    expect(r3.body.collection.daysSincePrevious).toBe(3);
     const audit = await testDb()('audit_log').where({ entity: 'collection', entity_id: String(r1.body.collection.id), action: 'create' }).first();
     expect(audit.user_id).toBeTruthy();
   });

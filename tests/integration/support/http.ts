@@ -20,7 +20,15 @@ export class Session {
   async fetch(path: string, init: RequestInit = {}): Promise<Response> {
     const headers = new Headers(init.headers);
     if (this.cookies.size) headers.set('cookie', this.cookieHeader);
-    const res = await fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
+    const send = () => fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
+    let res: Response;
+    try {
+      res = await send();
+    } catch (err) {
+      // A kept-alive socket the server closed at the same moment: safe to repeat a read.
+      if ((init.method ?? 'GET') !== 'GET') throw err;
+      res = await send();
+    }
     this.store(res);
     return res;
   }

@@ -1,8 +1,12 @@
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { collectionsAround, getCollection } from '@/db/queries/collections';
+import { morphologyForCollection } from '@/db/queries/reads';
 import { getLabSettings } from '@/db/queries/settings';
-import { STAFF_ROLES } from '@/lib/auth/roles';
+import { MorphologySummary } from '@/components/reads/morphology-summary';
+import { StartReadButton } from '@/components/reads/start-read-button';
+import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
+import { FieldImages } from '@/components/images/gallery';
 import { requirePageUser } from '@/lib/auth/session';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
 import { soundnessForCollection, summariseCollection } from '@/lib/semen/summary';
@@ -13,14 +17,16 @@ export const metadata = { title: 'Collection' };
 const DOSE_LABEL = { fresh: 'Fresh', cooled: 'Cooled, shipped', frozen: 'Frozen' } as const;
 
 export default async function CollectionPage({ params }: { params: Promise<{ id: string }> }) {
-  await requirePageUser(STAFF_ROLES);
+  const user = await requirePageUser(STAFF_ROLES);
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
   const c = await getCollection(Number(id)).catch(() => null);
   if (!c) notFound();
-  const [settings, around] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt))]);
-  // % normal comes from the settled morphology read once scoring exists for this collection.
-  const normalPct: number | null = null;
+  const [settings, around, reads] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt)), morphologyForCollection(c.id)]);
+  // PMMN uses the settled read when there is one, else a submitted first read (said so on the page).
+  const basis = reads.find((r) => r.kind === 'settled' && r.status === 'submitted') ?? reads.find((r) => r.kind === 'first' && r.status === 'submitted');
+  const normalPct = basis?.pctNormal ?? null;
+  const firstRead = reads.find((r) => r.kind === 'first');
   const s = summariseCollection(c, settings, normalPct);
   const bse = soundnessForCollection(
     c.id,
@@ -78,7 +84,18 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
               <dt className="text-ink-soft">Total motile</dt><dd>{billions(s.totals.totalMotileBillion)}</dd>
               <dt className="text-ink-soft">Progressively motile (PMS)</dt><dd data-testid="pms">{billions(s.totals.progressivelyMotileBillion)}</dd>
               <dt className="text-ink-soft">Progressively motile, morphologically normal (PMMN)</dt>
-              <dd>{s.totals.pmmnBillion == null ? <span className="text-ink-faint">waiting for the morphology read</span> : billions(s.totals.pmmnBillion)}</dd>
+              <dd data-testid="pmmn">
+                {s.totals.pmmnBillion == null ? (
+                  <span className="text-ink-faint">waiting for the morphology read</span>
+                ) : (
+                  <>
+                    {billions(s.totals.pmmnBillion)}
+                    <span className="block text-xs text-ink-faint">
+                      at {fmt(normalPct)} % normal from the {basis?.kind === 'settled' ? 'settled read' : 'first read (not yet checked by a second reader)'}
+                    </span>
+                  </>
+                )}
+              </dd>
             </dl>
           ) : (
             <p className="text-sm text-ink-soft">Missing {s.missing.join(', ')}: the numbers appear once they are recorded.</p>
@@ -107,6 +124,21 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
           <p className="mt-2 text-xs text-ink-faint">Dose sizes are set by the lab manager under Lab settings.</p>
         </section>
       )}
+
+      <section aria-labelledby="morph-heading" className="space-y-3">
+        <div className="flex flex-wrap items-center justify-between gap-3">
+          <h2 id="morph-heading">Morphology</h2>
+          {READER_ROLES.includes(user.role) && (!firstRead || (firstRead.status === 'open' && firstRead.readerId === user.id)) && (
+            <StartReadButton collectionId={c.id} label={firstRead ? 'Continue first read' : 'Start first read'} />
+          )}
+        </div>
+        <MorphologySummary reads={reads} />
+      </section>
+
+      <section aria-labelledby="images-heading" className="space-y-3">
+        <h2 id="images-heading">Field images</h2>
+        <FieldImages collectionId={c.id} canUpload={READER_ROLES.includes(user.role)} defaults={{ magnification: c.magnification, optics: c.optics }} />
+      </section>
 
       <section aria-labelledby="bse" className="card">
         <h2 id="bse" className="mb-2">Breeding soundness (second of two ejaculates)</h2>

@@ -18,6 +18,15 @@ const columns = [
     header: 'Total sperm',
     cell: (i) => billions(i.getValue()),
   }),
+  c.accessor('firstRead', {
+    id: 'firstRead',
+    header: 'Morphology (first read)',
+    enableSorting: false,
+    cell: (i) => {
+      const f = i.getValue();
+      return f ? `${f.cells} cells · ${f.pctNormal == null ? '—' : `${fmt(f.pctNormal)} % normal`}${f.status === 'open' ? ' (in progress)' : ''}` : '—';
+    },
+  }),
   c.accessor('daysSincePrevious', { id: 'daysSincePrevious', header: 'Days since previous', enableSorting: false, cell: (i) => fmt(i.getValue()) }),
 ];
 

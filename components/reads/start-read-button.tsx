@@ -1,0 +1,28 @@
+'use client';
+
+import { useRouter } from 'next/navigation';
+import { useState } from 'react';
+import { apiFetch } from '@/lib/api/fetcher';
+
+export function StartReadButton({ collectionId, label }: { collectionId: number; label: string }) {
+  const router = useRouter();
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  async function start() {
+    setBusy(true);
+    setError(null);
+    try {
+      const { read } = await apiFetch<{ read: { id: number } }>(`/api/collections/${collectionId}/reads`, { method: 'POST', body: JSON.stringify({ kind: 'first' }) });
+      router.push(`/reads/${read.id}`);
+    } catch (err) {
+      setError(err instanceof Error ? err.message : 'The read could not be started.');
+      setBusy(false);
+    }
+  }
+  return (
+    <span className="inline-flex flex-col gap-1">
+      <button type="button" className="btn" onClick={start} disabled={busy}>{busy ? 'Opening…' : label}</button>
+      {error && <span className="text-sm text-danger">{error}</span>}
+    </span>
+  );
+}

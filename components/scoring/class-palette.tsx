@@ -1,0 +1,56 @@
+'use client';
+
+import type { MarkClass } from '@/lib/class-sets/schema';
+import { MarkerSwatch } from './marker-swatch';
+
+/** The classes as buttons: the pressed one is the class the next click places. */
+export function ClassPalette({
+  classes,
+  currentKey,
+  disabled,
+  onChoose,
+}: {
+  classes: readonly MarkClass[];
+  currentKey: string;
+  disabled: boolean;
+  onChoose(key: string): void;
+}) {
+  const sperm = classes.filter((c) => c.countsAsSperm);
+  const other = classes.filter((c) => !c.countsAsSperm);
+  const item = (c: MarkClass) => (
+    <li key={c.key}>
+      <button
+        type="button"
+        disabled={disabled}
+        aria-pressed={c.key === currentKey}
+        aria-label={c.hotkey ? `${c.name} (key ${c.hotkey})` : c.name}
+        onClick={() => onChoose(c.key)}
+        className="flex w-full items-center gap-2 rounded-md border border-transparent px-2 py-1 text-left text-sm hover:bg-paper-sunk disabled:opacity-50 aria-pressed:border-brand aria-pressed:bg-brand-light"
+      >
+        <span className="rounded bg-[#2a2630] p-0.5">
+          <MarkerSwatch shape={c.shape} colour={c.colour} />
+        </span>
+        <span className="flex-1 leading-tight">{c.name}</span>
+        {c.hotkey && <kbd className="rounded border border-line bg-paper px-1.5 font-mono text-xs text-ink-soft">{c.hotkey}</kbd>}
+      </button>
+    </li>
+  );
+  return (
+    <section aria-labelledby="palette-heading" className="space-y-1">
+      <h2 id="palette-heading" className="text-sm font-semibold">
+        Class for new marks
+      </h2>
+      <ul className="space-y-0.5" aria-label="Sperm classes">
+        {sperm.map(item)}
+      </ul>
+      {other.length > 0 && (
+        <>
+          <p className="pt-1 text-xs text-ink-faint">Not sperm (tallied apart)</p>
+          <ul className="space-y-0.5" aria-label="Non-sperm classes">
+            {other.map(item)}
+          </ul>
+        </>
+      )}
+    </section>
+  );
+}

@@ -1,0 +1,173 @@
+import 'server-only';
+import { createWriteStream } from 'node:fs';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { Readable, Transform } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
+import { db } from '@/db/knex';
+import { writeAudit } from '@/db/queries/audit';
+import { ApiError, conflict, notFound } from '@/lib/api/errors';
+import type { CurrentUser } from '@/lib/auth/session';
+import { UPLOAD_LIMITS } from '@/lib/images/limits';
+import { ObjectStoreError, storeFieldImage, type StoreImageInput } from '@/lib/images/store';
+import * as storage from '@/storage/s3';
+
+export type FieldImage = {
+  id: number;
+  collectionId: number;
+  position: number;
+  fileName: string;
+  format: string;
+  bytes: number;
+  width: number;
+  height: number;
+  bitDepth: number;
+  sha256: string;
+  micronsPerPixel: number | null;
+  magnification: number | null;
+  optics: string | null;
+  uploadedBy: string;
+  createdAt: string;
+  /** Cells marked on this image in each read (live marks only). */
+  marks: { first: number; second: number; settled: number };
+  thumbUrl: string;
+  displayUrl: string;
+};
+
+function toImage(r: Record<string, any>): FieldImage {
+  return {
+    id: r.id,
+    collectionId: r.collection_id,
+    position: r.position,
+    fileName: r.file_name,
+    format: r.format,
+    bytes: Number(r.bytes),
+    width: r.width,
+    height: r.height,
+    bitDepth: r.bit_depth,
+    sha256: r.sha256,
+    micronsPerPixel: r.microns_per_pixel,
+    magnification: r.magnification,
+    optics: r.optics,
+    uploadedBy: r.uploaded_by_name,
+    createdAt: new Date(r.created_at).toISOString(),
+    marks: { first: Number(r.marks_first ?? 0), second: Number(r.marks_second ?? 0), settled: Number(r.marks_settled ?? 0) },
+    thumbUrl: `/api/images/${r.id}/thumb`,
+    displayUrl: `/api/images/${r.id}/display`,
+  };
+}
+
+const markCount = (kind: string) =>
+  db.raw(`(select count(*) from marks m join \`reads\` r on r.id = m.read_id where m.image_id = i.id and m.deleted = 0 and r.kind = '${kind}') as marks_${kind}`);
+
+export async function listImages(collectionId: number): Promise<FieldImage[]> {
+  const rows = await db('field_images as i')
+    .join('users as u', 'u.id', 'i.uploaded_by')
+    .where('i.collection_id', collectionId)
+    .orderBy('i.position')
+    .select('i.*', 'u.name as uploaded_by_name', markCount('first'), markCount('second'), markCount('settled'));
+  return rows.map(toImage);
+}
+
+export async function getImageRow(id: number) {
+  const row = await db('field_images').where({ id }).first();
+  if (!row) throw notFound('The field image');
+  return row;
+}
+
+/** Streams the request body to a temporary file, refusing it once it passes the size limit. */
+async function bodyToTempFile(body: ReadableStream<Uint8Array> | null, maxBytes: number, name: string): Promise<{ dir: string; path: string; bytes: number }> {
+  if (!body) throw new ApiError(422, 'empty', `${name}: the file is empty (0 bytes).`);
+  const dir = await mkdtemp(join(tmpdir(), 'fieldmark-upload-'));
+  const path = join(dir, 'upload');
+  let bytes = 0;
+  const limiter = new Transform({
+    transform(chunk: Buffer, _enc, done) {
+      bytes += chunk.length;
+      if (bytes > maxBytes) done(new ApiError(413, 'too_large', `${name}: the file is larger than the ${Math.round(maxBytes / 1048576)} MB limit.`));
+      else done(null, chunk);
+    },
+  });
+  try {
+    await pipeline(Readable.fromWeb(body as import('node:stream/web').ReadableStream), limiter, createWriteStream(path));
+  } catch (err) {
+    await rm(dir, { recursive: true, force: true });
+    if (err instanceof ApiError) throw err;
+    throw new ApiError(400, 'upload_interrupted', `${name}: the upload was interrupted before the whole file arrived. Try again.`);
+  }
+  return { dir, path, bytes };
+}
+
+export async function uploadImage(
+  actor: CurrentUser,
+  collectionId: number,
+  body: ReadableStream<Uint8Array> | null,
+  meta: Omit<StoreImageInput, 'collectionId' | 'filePath' | 'uploadedBy'>,
+): Promise<{ image: FieldImage; duplicate: boolean }> {
+  if (!(await db('collections').where({ id: collectionId }).first('id'))) throw notFound('The collection');
+  const tmp = await bodyToTempFile(body, UPLOAD_LIMITS.maxBytes, meta.fileName);
+  try {
+    const r = await storeFieldImage(db, storage, { ...meta, collectionId, filePath: tmp.path, uploadedBy: actor.id }, UPLOAD_LIMITS);
+    if (!r.ok) {
+      const status = r.code === 'too_large' ? 413 : r.code === 'unsupported_format' || r.code === 'not_an_image' ? 415 : 422;
+      throw new ApiError(status, r.code, `${meta.fileName}: ${r.message}`);
+    }
+    const image = (await listImages(collectionId)).find((i) => i.id === r.id)!;
+    return { image, duplicate: r.duplicate };
+  } catch (err) {
+    if (err instanceof ObjectStoreError) {
+      console.error('[fieldmark] object store', err.cause);
+      throw new ApiError(503, 'storage_unavailable', `${meta.fileName}: the image store is not reachable; nothing was saved. Try again shortly.`);
+    }
+    throw err;
+  } finally {
+    await rm(tmp.dir, { recursive: true, force: true });
+  }
+}
+
+export async function updateImage(actor: CurrentUser, id: number, change: { move?: 'up' | 'down'; micronsPerPixel?: number | null }): Promise<void> {
+  await db.transaction(async (trx) => {
+    const img = await trx('field_images').where({ id }).forUpdate().first();
+    if (!img) throw notFound('The field image');
+    if (change.move) {
+      const neighbour = await trx('field_images')
+        .where('collection_id', img.collection_id)
+        .where('position', change.move === 'up' ? '<' : '>', img.position)
+        .orderBy('position', change.move === 'up' ? 'desc' : 'asc')
+        .forUpdate()
+        .first();
+      if (neighbour) {
+        await trx('field_images').where({ id: neighbour.id }).update({ position: img.position });
+        await trx('field_images').where({ id }).update({ position: neighbour.position });
+      }
+    }
+    if (change.micronsPerPixel !== undefined) await trx('field_images').where({ id }).update({ microns_per_pixel: change.micronsPerPixel });
+    await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'field_image', entityId: id, before: { position: img.position, micronsPerPixel: img.microns_per_pixel }, after: change });
+  });
+}
+
+export async function setCollectionScale(actor: CurrentUser, collectionId: number, micronsPerPixel: number): Promise<number> {
+  return db.transaction(async (trx) => {
+    const n = await trx('field_images').where({ collection_id: collectionId }).update({ microns_per_pixel: micronsPerPixel });
+    await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'collection_scale', entityId: collectionId, after: { micronsPerPixel, images: n } });
+    return n;
+  });
+}
+
+/** Refused while any read has cells marked on the image: removing it would silently change a result. */
+export async function deleteImage(actor: CurrentUser, id: number): Promise<void> {
+  const keys = await db.transaction(async (trx) => {
+    const img = await trx('field_images').where({ id }).forUpdate().first();
+    if (!img) throw notFound('The field image');
+    const marked = await trx('marks').where({ image_id: id }).count({ n: '*' }).first();
+    if (Number(marked?.n ?? 0) > 0) {
+      throw conflict(`${img.file_name} has cells marked on it in a read; it cannot be deleted. Delete the marks first, or keep the image.`);
+    }
+    await trx('field_images').where({ id }).delete();
+    await writeAudit(trx, { userId: actor.id, action: 'delete', entity: 'field_image', entityId: id, before: img });
+    return [img.original_key, img.display_key, img.thumb_key] as string[];
+  });
+  // After the row is gone; an object left by a failed removal is unreachable, never a dangling row.
+  await Promise.allSettled(keys.map((k) => storage.remove(k)));
+}

@@ -1,0 +1,203 @@
+// Browser side of tests/bench/canvas.bench.ts: the real FieldCanvas module on a
+// 4000 × 3000 field, driven and timed inside the page with performance.now().
+import Konva from 'konva';
+import { useState } from 'react';
+import { flushSync } from 'react-dom';
+import { createRoot } from 'react-dom/client';
+import { FieldCanvas, type FieldCanvasControl } from '@/components/scoring/field-canvas';
+import type { FieldImageRef } from '@/components/scoring/types';
+import { DEFAULT_CLASS_SET } from '@/lib/class-sets/default-set';
+import type { ScoringMark } from '@/lib/scoring/types';
+
+const W = 4000;
+const H = 3000;
+const image: FieldImageRef = {
+  id: '1',
+  fileName: 'bench-field.jpg',
+  width: W,
+  height: H,
+  micronsPerPixel: 0.25,
+  position: 1,
+  displayUrl: '/field.jpg',
+  thumbUrl: '/field.jpg',
+};
+const classes = new Map(DEFAULT_CLASS_SET.classes.map((c) => [c.key, c]));
+const keys = [...classes.keys()];
+
+function mulberry32(seed: number) {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+let counter = 0;
+function makeMarks(n: number, rnd: () => number): ScoringMark[] {
+  return Array.from({ length: n }, () => ({
+    id: `00000000-0000-4000-8000-${(counter++).toString(16).padStart(12, '0')}`,
+    imageId: '1',
+    x: Math.round(rnd() * W * 100) / 100,
+    y: Math.round(rnd() * H * 100) / 100,
+    classKey: keys[Math.floor(rnd() * keys.length)]!,
+    tags: rnd() < 0.1 ? ['distal_droplet'] : [],
+  }));
+}
+
+const frame = () => new Promise<void>((r) => requestAnimationFrame(() => r()));
+const settle = async () => {
+  await frame();
+  await frame();
+};
+/** Reading one pixel makes the browser finish rasterising what was drawn. */
+const FLUSH = !location.search.includes('noflush');
+const flushCanvas = (c: Konva.Layer) => {
+  if (FLUSH) c.getContext()._context.getImageData(0, 0, 1, 1);
+};
+
+let setMarksOut: (m: ScoringMark[]) => void = () => {};
+const control: { current: FieldCanvasControl | null } = { current: null };
+
+function App() {
+  const [marks, setMarks] = useState<ScoringMark[]>([]);
+  setMarksOut = setMarks;
+  return (
+    <div style={{ width: 1100, height: 720 }}>
+      <FieldCanvas
+        image={image}
+        marks={marks}
+        classes={classes}
+        selectedId={null}
+        marksVisible
+        readOnly={false}
+        currentClass={classes.get('normal')!}
+        onPlace={() => {}}
+        onSelect={() => {}}
+        onMove={() => {}}
+        controlRef={control}
+      />
+    </div>
+  );
+}
+
+async function waitFor(check: () => boolean, what: string) {
+  const until = performance.now() + 60_000;
+  while (!check()) {
+    if (performance.now() > until) throw new Error(`Timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+interface Timings {
+  place: number[];
+  /** The React commit alone, inside `place`. */
+  commit: number[];
+  pan: number[];
+}
+
+async function runOurs(nMarks: number, placements: number, panFrames: number): Promise<Timings> {
+  const rnd = mulberry32(7 + nMarks);
+  let marks = makeMarks(nMarks, rnd);
+  flushSync(() => setMarksOut(marks));
+  control.current!.fit();
+  await settle();
+  const stage = control.current!.getStage()!;
+  const [, marksLayer] = stage.getLayers() as [Konva.Layer, Konva.Layer, Konva.Layer];
+  const place: number[] = [];
+  const commit: number[] = [];
+  for (let i = 0; i < placements; i++) {
+    const [m] = makeMarks(1, rnd);
+    const t0 = performance.now();
+    // The workbench's path: new array with one more mark → React commit → Konva redraw of the marks layer.
+    marks = [...marks, m!];
+    flushSync(() => setMarksOut(marks));
+    commit.push(performance.now() - t0);
+    marksLayer.draw();
+    flushCanvas(marksLayer);
+    place.push(performance.now() - t0);
+    await settle();
+  }
+  const pan: number[] = [];
+  for (let i = 0; i < panFrames; i++) {
+    const dx = i % 40 < 20 ? 6 : -6;
+    const t0 = performance.now();
+    control.current!.panBy(dx, dx / 2);
+    stage.draw();
+    for (const l of stage.getLayers()) flushCanvas(l);
+    pan.push(performance.now() - t0);
+    await frame();
+  }
+  flushSync(() => setMarksOut([]));
+  await settle();
+  return { place, commit, pan };
+}
+
+/** Baseline: plain Konva, no React, one Circle per mark, the full-size image drawn as is. */
+async function runPlain(nMarks: number, placements: number, panFrames: number): Promise<Timings> {
+  const host = document.createElement('div');
+  document.body.appendChild(host);
+  const img = new window.Image();
+  img.src = '/field.jpg';
+  await img.decode();
+  const stage = new Konva.Stage({ container: host, width: 1100, height: 720, listening: false });
+  const scale = Math.min(1100 / W, 720 / H);
+  stage.scale({ x: scale, y: scale });
+  const imgLayer = new Konva.Layer({ listening: false });
+  imgLayer.add(new Konva.Image({ image: img, width: W, height: H, listening: false }));
+  const layer = new Konva.Layer({ listening: false });
+  stage.add(imgLayer, layer);
+  const rnd = mulberry32(11 + nMarks);
+  const add = (m: ScoringMark) =>
+    layer.add(
+      new Konva.Circle({
+        x: m.x,
+        y: m.y,
+        radius: 9 / scale,
+        fill: classes.get(m.classKey)!.colour,
+        stroke: '#111820',
+        strokeWidth: 1.5,
+        strokeScaleEnabled: false,
+        listening: false,
+        perfectDrawEnabled: false,
+        shadowForStrokeEnabled: false,
+      }),
+    );
+  makeMarks(nMarks, rnd).forEach(add);
+  stage.draw();
+  await settle();
+  const place: number[] = [];
+  for (let i = 0; i < placements; i++) {
+    const [m] = makeMarks(1, rnd);
+    const t0 = performance.now();
+    add(m!);
+    layer.draw();
+    flushCanvas(layer);
+    place.push(performance.now() - t0);
+    await settle();
+  }
+  const pan: number[] = [];
+  for (let i = 0; i < panFrames; i++) {
+    const dx = i % 40 < 20 ? 6 : -6;
+    const t0 = performance.now();
+    stage.position({ x: stage.x() + dx, y: stage.y() + dx / 2 });
+    stage.draw();
+    flushCanvas(imgLayer);
+    flushCanvas(layer);
+    pan.push(performance.now() - t0);
+    await frame();
+  }
+  stage.destroy();
+  host.remove();
+  return { place, commit: [], pan };
+}
+
+async function ready() {
+  await waitFor(() => Boolean(control.current?.getStage()?.findOne('Image')), 'the field image');
+}
+
+const root = createRoot(document.getElementById('root')!);
+root.render(<App />);
+(window as unknown as { __bench: unknown }).__bench = { ready, runOurs, runPlain };

@@ -1,0 +1,90 @@
+// Mark-save route under 50 concurrent writers, against a bare Knex insert into the same
+// table in the same run. Needs the services and the app running (npm start, or npm run bench).
+// Usage: npx tsx tests/bench/marks-route.bench.ts [--writers 50] [--per-writer 40]
+import knexFactory from 'knex';
+import sharp from 'sharp';
+import { knexConfig } from '../../knexfile';
+import { signedIn, USERS } from '../integration/support/http';
+
+const arg = (name: string, dflt: number) => {
+  const i = process.argv.indexOf(`--${name}`);
+  return i > 0 ? Number(process.argv[i + 1]) : dflt;
+};
+const WRITERS = arg('writers', 50);
+const PER_WRITER = arg('per-writer', 40);
+
+const pct = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
+
+async function runWriters(work: (writer: number, i: number) => Promise<void>) {
+  const latencies: number[] = [];
+  const t0 = performance.now();
+  await Promise.all(
+    Array.from({ length: WRITERS }, async (_, w) => {
+      for (let i = 0; i < PER_WRITER; i++) {
+        const s = performance.now();
+        await work(w, i);
+        latencies.push(performance.now() - s);
+      }
+    }),
+  );
+  const seconds = (performance.now() - t0) / 1000;
+  latencies.sort((a, b) => a - b);
+  return { perSecond: latencies.length / seconds, p50: pct(latencies, 50), p99: pct(latencies, 99), n: latencies.length };
+}
+
+async function main() {
+  const db = knexFactory({ ...knexConfig(), pool: { min: 0, max: WRITERS } });
+  const s = await signedIn(USERS.tech);
+  const stallion = (await s.json('/api/stallions?pageSize=5')).body.rows[0];
+  const collection = (await s.json('/api/collections', 'POST', {
+    stallionId: stallion.id, collectedAt: new Date().toISOString(), volumeMl: 50, concentrationMethod: 'entered', concentrationMillionPerMl: 150,
+    totalMotilityPct: 70, progressiveMotilityPct: 60, preparation: 'eosin_nigrosin', optics: 'bright_field', magnification: 1000, remarks: 'benchmark collection',
+  })).body.collection;
+  const jpeg = await sharp({ create: { width: 4000, height: 3000, channels: 3, background: '#6b5a7a' } }).jpeg().toBuffer();
+  const image = ((await (await s.fetch(`/api/collections/${collection.id}/images?name=bench.jpg`, { method: 'POST', body: new Uint8Array(jpeg) })).json()) as any).image;
+  const read = (await s.json(`/api/collections/${collection.id}/reads`, 'POST', { kind: 'first' })).body.read;
+  const techId = (await db('users').where({ email: USERS.tech }).first()).id;
+  const set = await db('class_sets').where({ is_default: true }).first();
+  const [baselineRead] = await db('reads').insert({ collection_id: collection.id, kind: 'second', reader_id: techId, class_set_id: set.id, class_set_snapshot: JSON.stringify({ name: 'bench', classes: [] }), target_cells: 200 });
+
+  const rnd = () => ({ x: Math.random() * 3999, y: Math.random() * 2999 });
+  // Warm both paths.
+  await s.json(`/api/reads/${read.id}/sync`, 'POST', { changes: [{ opId: crypto.randomUUID(), markId: crypto.randomUUID(), kind: 'upsert', payload: { imageId: String(image.id), ...rnd(), classKey: 'normal', tags: [] } }] });
+
+  const baseline = await runWriters(async () => {
+    const p = rnd();
+    await db('marks').insert({
+      id: crypto.randomUUID(), read_id: baselineRead, image_id: image.id, x: p.x.toFixed(2), y: p.y.toFixed(2), class_key: 'normal', tags: '[]',
+      counts_as_sperm: true, is_normal: true, version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: techId,
+    });
+  });
+  const routeRun = await runWriters(async () => {
+    const r = await s.json(`/api/reads/${read.id}/sync`, 'POST', {
+      changes: [{ opId: crypto.randomUUID(), markId: crypto.randomUUID(), kind: 'upsert', payload: { imageId: String(image.id), ...rnd(), classKey: 'normal', tags: [] } }],
+    });
+    if (r.status !== 200 || r.body.acked.length !== 1) throw new Error(`route answered ${r.status}: ${JSON.stringify(r.body)}`);
+  });
+  const saved = await db('marks').where({ read_id: read.id, deleted: false }).count({ n: '*' }).first();
+
+  console.log(`\nMark saves, ${WRITERS} concurrent writers × ${PER_WRITER} each (one mark per request)\n`);
+  console.log('| path | saves | saves/s | p50 ms | p99 ms | throughput vs bare insert |');
+  console.log('|---|---|---|---|---|---|');
+  for (const [name, r] of [['bare Knex insert (baseline)', baseline], ['POST /api/reads/:id/sync', routeRun]] as const) {
+    console.log(`| ${name} | ${r.n} | ${r.perSecond.toFixed(0)} | ${r.p50.toFixed(1)} | ${r.p99.toFixed(1)} | ${(r.perSecond / baseline.perSecond).toFixed(2)} |`);
+  }
+  const ratio = routeRun.perSecond / baseline.perSecond;
+  console.log(`\nTarget: route throughput ≥ 0.5 × bare insert: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)})`);
+  console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
+  // The benchmark's rows stay out of the demo: remove them.
+  await db('marks').whereIn('read_id', [read.id, baselineRead]).delete();
+  await db('mark_ops').whereIn('read_id', [read.id]).delete();
+  await db('reads').whereIn('id', [read.id, baselineRead]).delete();
+  await s.json(`/api/images/${image.id}`, 'DELETE');
+  await db('collections').where({ id: collection.id }).delete();
+  await db.destroy();
+}
+
+main().catch((err) => {
+  console.error(err);
+  process.exit(1);
+});
