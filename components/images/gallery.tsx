@@ -57,6 +57,8 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
                 <button
                   type="button"
                   className="btn-secondary px-2 py-1 text-xs text-danger"
+                  disabled={img.marks.first + img.marks.second + img.marks.settled > 0}
+                  title={img.marks.first + img.marks.second + img.marks.settled > 0 ? 'Cells are marked on this image in a read' : undefined}
                   onClick={() => window.confirm(`Delete ${img.fileName}? The original and its copies are removed.`) && act(() => apiFetch(`/api/images/${img.id}`, { method: 'DELETE' }), `${img.fileName} deleted.`)}
                 >
                   Delete<span className="sr-only"> {img.fileName}</span>

@@ -94,9 +94,13 @@ export async function getReadDetail(user: CurrentUser, readId: number): Promise<
   };
 }
 
-/** Locks the read for writing by its reader; every mark change goes through here. */
-async function writableRead(trx: Knex.Transaction, user: CurrentUser, readId: number) {
-  const read = await trx('reads').where({ id: readId }).forUpdate().first();
+/**
+ * Checks the read is open and the user's, holding a shared lock: mark saves run side by side,
+ * while submitting (which takes the exclusive lock) waits for them and they wait for it.
+ */
+async function writableRead(trx: Knex.Transaction, user: CurrentUser, readId: number, lock: 'share' | 'update' = 'share') {
+  const q = trx('reads').where({ id: readId });
+  const read = await (lock === 'share' ? q.forShare() : q.forUpdate()).first();
   if (!read) throw notFound('The read');
   if (read.reader_id !== user.id) throw forbidden('Only the reader who started this read can change its marks.');
   if (read.status !== 'open') throw conflict('This read has been submitted and is locked.');
@@ -127,82 +131,94 @@ function checkMark(c: ChangeInput, images: Map<number, ImageBox>, classes: Map<s
  * is a conflict answered with the server's copy. One transaction: all or nothing on error.
  */
 export async function syncMarks(user: CurrentUser, readId: number, changes: ChangeInput[]): Promise<SendResult> {
-  return db.transaction(async (trx) => {
-    const read = await writableRead(trx, user, readId);
-    const classes = new Map(json<ClassSet>(read.class_set_snapshot).classes.map((c) => [c.key, c]));
-    const images = new Map<number, ImageBox>(
-      (await trx('field_images').where({ collection_id: read.collection_id }).select('id', 'width', 'height')).map((i) => [i.id, i]),
-    );
-    const result: Required<SendResult> = { acked: [], conflicts: [], rejected: [] };
-    const done = new Map<string, number>(
-      (await trx('mark_ops').whereIn('op_id', changes.map((c) => c.opId)).select('op_id', 'version')).map((o) => [o.op_id, o.version]),
-    );
-    const ids = [...new Set(changes.map((c) => c.markId))];
-    const rows = new Map<string, Record<string, any>>((await trx('marks').whereIn('id', ids).forUpdate()).map((m) => [m.id, m]));
-
-    for (const c of changes) {
-      if (done.has(c.opId)) {
-        result.acked.push({ opId: c.opId, markId: c.markId, version: done.get(c.opId) });
-        continue;
-      }
-      const row = rows.get(c.markId);
-      if (row && row.read_id !== readId) {
-        result.rejected.push({ opId: c.opId, markId: c.markId, message: 'This mark belongs to another read.' });
-        continue;
-      }
-      if (row && c.baseVersion !== undefined && c.baseVersion !== row.version) {
-        result.conflicts.push({ opId: c.opId, markId: c.markId, server: row.deleted ? null : toMark(row) });
-        continue;
-      }
-      let version: number;
-      if (c.kind === 'delete') {
-        if (!row || row.deleted) {
-          version = row?.version ?? 0;
-        } else {
-          version = row.version + 1;
-          await trx('marks').where({ id: c.markId }).update({ deleted: true, version, last_op_id: c.opId, updated_by: user.id, updated_at: trx.fn.now(3) });
-          rows.set(c.markId, { ...row, deleted: true, version });
-        }
-      } else {
-        const problem = checkMark(c, images, classes);
-        if (problem) {
-          result.rejected.push({ opId: c.opId, markId: c.markId, message: problem });
-          continue;
-        }
-        const p = c.payload!;
-        const cls = classes.get(p.classKey)!;
-        const values = {
-          image_id: p.imageId,
-          x: Math.round(p.x * 100) / 100,
-          y: Math.round(p.y * 100) / 100,
-          class_key: p.classKey,
-          tags: JSON.stringify([...new Set(p.tags)]),
-          counts_as_sperm: cls.countsAsSperm,
-          is_normal: cls.group === 'normal',
-          deleted: false,
-          last_op_id: c.opId,
-          updated_by: user.id,
-        };
-        if (row) {
-          version = row.version + 1;
-          await trx('marks').where({ id: c.markId }).update({ ...values, version, updated_at: trx.fn.now(3) });
-        } else {
-          version = 1;
-          await trx('marks').insert({ id: c.markId, read_id: readId, ...values, version });
-        }
-        rows.set(c.markId, { ...(row ?? { id: c.markId, read_id: readId }), ...values, version });
-      }
-      await trx('mark_ops').insert({ op_id: c.opId, mark_id: c.markId, read_id: readId, version });
-      done.set(c.opId, version);
-      result.acked.push({ opId: c.opId, markId: c.markId, version });
+  // Read committed: locking a not-yet-existing mark id takes no gap lock, so concurrent
+  // creates do not deadlock. A deadlock, or a duplicate key from the same change arriving twice
+  // at once, is retried: the batch is idempotent, so the retry acknowledges what the other stored.
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await db.transaction((trx) => applyChanges(trx, user, readId, changes), { isolationLevel: 'read committed' });
+    } catch (err) {
+      const code = (err as { code?: string }).code;
+      if ((code !== 'ER_LOCK_DEADLOCK' && code !== 'ER_DUP_ENTRY') || attempt >= 4) throw err;
     }
-    return result;
-  });
+  }
+}
+
+async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: number, changes: ChangeInput[]): Promise<SendResult> {
+  const read = await writableRead(trx, user, readId);
+  const classes = new Map(json<ClassSet>(read.class_set_snapshot).classes.map((c) => [c.key, c]));
+  const images = new Map<number, ImageBox>(
+    (await trx('field_images').where({ collection_id: read.collection_id }).select('id', 'width', 'height')).map((i) => [i.id, i]),
+  );
+  const result: Required<SendResult> = { acked: [], conflicts: [], rejected: [] };
+  const done = new Map<string, number>(
+    (await trx('mark_ops').whereIn('op_id', changes.map((c) => c.opId)).select('op_id', 'version')).map((o) => [o.op_id, o.version]),
+  );
+  const ids = [...new Set(changes.map((c) => c.markId))];
+  const rows = new Map<string, Record<string, any>>((await trx('marks').whereIn('id', ids).forUpdate()).map((m) => [m.id, m]));
+
+  for (const c of changes) {
+    if (done.has(c.opId)) {
+      result.acked.push({ opId: c.opId, markId: c.markId, version: done.get(c.opId) });
+      continue;
+    }
+    const row = rows.get(c.markId);
+    if (row && row.read_id !== readId) {
+      result.rejected.push({ opId: c.opId, markId: c.markId, message: 'This mark belongs to another read.' });
+      continue;
+    }
+    if (row && c.baseVersion !== undefined && c.baseVersion !== row.version) {
+      result.conflicts.push({ opId: c.opId, markId: c.markId, server: row.deleted ? null : toMark(row) });
+      continue;
+    }
+    let version: number;
+    if (c.kind === 'delete') {
+      if (!row || row.deleted) {
+        version = row?.version ?? 0;
+      } else {
+        version = row.version + 1;
+        await trx('marks').where({ id: c.markId }).update({ deleted: true, version, last_op_id: c.opId, updated_by: user.id, updated_at: trx.fn.now(3) });
+        rows.set(c.markId, { ...row, deleted: true, version });
+      }
+    } else {
+      const problem = checkMark(c, images, classes);
+      if (problem) {
+        result.rejected.push({ opId: c.opId, markId: c.markId, message: problem });
+        continue;
+      }
+      const p = c.payload!;
+      const cls = classes.get(p.classKey)!;
+      const values = {
+        image_id: p.imageId,
+        x: Math.round(p.x * 100) / 100,
+        y: Math.round(p.y * 100) / 100,
+        class_key: p.classKey,
+        tags: JSON.stringify([...new Set(p.tags)]),
+        counts_as_sperm: cls.countsAsSperm,
+        is_normal: cls.group === 'normal',
+        deleted: false,
+        last_op_id: c.opId,
+        updated_by: user.id,
+      };
+      if (row) {
+        version = row.version + 1;
+        await trx('marks').where({ id: c.markId }).update({ ...values, version, updated_at: trx.fn.now(3) });
+      } else {
+        version = 1;
+        await trx('marks').insert({ id: c.markId, read_id: readId, ...values, version });
+      }
+      rows.set(c.markId, { ...(row ?? { id: c.markId, read_id: readId }), ...values, version });
+    }
+    await trx('mark_ops').insert({ op_id: c.opId, mark_id: c.markId, read_id: readId, version });
+    done.set(c.opId, version);
+    result.acked.push({ opId: c.opId, markId: c.markId, version });
+  }
+  return result;
 }
 
 export async function submitRead(user: CurrentUser, readId: number): Promise<ReadSummary> {
   return db.transaction(async (trx) => {
-    const read = await writableRead(trx, user, readId);
+    const read = await writableRead(trx, user, readId, 'update');
     const n = await trx('marks').where({ read_id: readId, deleted: false }).count({ n: '*' }).first();
     if (Number(n?.n ?? 0) === 0) throw new ApiError(422, 'empty_read', 'Mark at least one cell before submitting the read.');
     await trx('reads').where({ id: readId }).update({ status: 'submitted', submitted_at: trx.fn.now(3) });

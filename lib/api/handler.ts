@@ -2,7 +2,7 @@ import 'server-only';
 import { NextResponse, type NextRequest } from 'next/server';
 import { z } from 'zod';
 import { ApiError, type ApiIssue } from '@/lib/api/errors';
-import { getCurrentUser, type CurrentUser } from '@/lib/auth/session';
+import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
 import type { Role } from '@/lib/auth/roles';
 
 type Schema = z.ZodType;
@@ -49,7 +49,7 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
 ) {
   return async (req: NextRequest, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
     try {
-      const user = await getCurrentUser();
+      const user = await getRequestUser(req);
       if (!user) throw new ApiError(401, 'unauthenticated', 'Sign in to use this.');
       if (!opts.roles.includes(user.role)) throw new ApiError(403, 'forbidden', 'Your role does not allow this.');
       const params = opts.params ? parse(opts.params, await ctx.params, 'address') : undefined;

@@ -64,17 +64,26 @@ async function main() {
     });
     if (r.status !== 200 || r.body.acked.length !== 1) throw new Error(`route answered ${r.status}: ${JSON.stringify(r.body)}`);
   });
+  // The canvas sends its queued changes together; 10 per request is a technician marking fast on a slow link.
+  const BATCH = 10;
+  const batchRun = await runWriters(async () => {
+    const changes = Array.from({ length: BATCH }, () => ({ opId: crypto.randomUUID(), markId: crypto.randomUUID(), kind: 'upsert', payload: { imageId: String(image.id), ...rnd(), classKey: 'normal', tags: [] } }));
+    const r = await s.json(`/api/reads/${read.id}/sync`, 'POST', { changes });
+    if (r.status !== 200 || r.body.acked.length !== BATCH) throw new Error(`route answered ${r.status}: ${JSON.stringify(r.body)}`);
+  });
+  const batchSaves = { ...batchRun, perSecond: batchRun.perSecond * BATCH, n: batchRun.n * BATCH };
   const saved = await db('marks').where({ read_id: read.id, deleted: false }).count({ n: '*' }).first();
 
   console.log(`\nMark saves, ${WRITERS} concurrent writers × ${PER_WRITER} each (one mark per request)\n`);
-  console.log('| path | saves | saves/s | p50 ms | p99 ms | throughput vs bare insert |');
+  console.log('| path | saves | saves/s | p50 ms (per request) | p99 ms (per request) | throughput vs bare insert |');
   console.log('|---|---|---|---|---|---|');
-  for (const [name, r] of [['bare Knex insert (baseline)', baseline], ['POST /api/reads/:id/sync', routeRun]] as const) {
+  for (const [name, r] of [['bare Knex insert (baseline)', baseline], ['POST /api/reads/:id/sync, 1 mark per request', routeRun], [`POST /api/reads/:id/sync, ${BATCH} marks per request`, batchSaves]] as const) {
     console.log(`| ${name} | ${r.n} | ${r.perSecond.toFixed(0)} | ${r.p50.toFixed(1)} | ${r.p99.toFixed(1)} | ${(r.perSecond / baseline.perSecond).toFixed(2)} |`);
   }
   const ratio = routeRun.perSecond / baseline.perSecond;
-  console.log(`\nTarget: route throughput ≥ 0.5 × bare insert: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)})`);
-  console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
+  const batchRatio = batchSaves.perSecond / baseline.perSecond;
+  console.log(`\nTarget: route throughput ≥ 0.5 × bare insert — one mark per request: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)}); ${BATCH} per request: ${batchRatio >= 0.5 ? 'PASS' : 'FAIL'} (${batchRatio.toFixed(2)})`);
+  console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + batchSaves.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
   // The benchmark's rows stay out of the demo: remove them.
   await db('marks').whereIn('read_id', [read.id, baselineRead]).delete();
   await db('mark_ops').whereIn('read_id', [read.id]).delete();

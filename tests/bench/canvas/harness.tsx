@@ -53,10 +53,28 @@ const settle = async () => {
   await frame();
 };
 /** Reading one pixel makes the browser finish rasterising what was drawn. */
-const FLUSH = !location.search.includes('noflush');
+let FLUSH = true;
 const flushCanvas = (c: Konva.Layer) => {
   if (FLUSH) c.getContext()._context.getImageData(0, 0, 1, 1);
 };
+
+/** Pan one step per frame through the real path (panBy → batchDraw) and record rAF-to-rAF intervals. */
+async function panIntervals(step: (i: number) => void, frames: number): Promise<number[]> {
+  const out: number[] = [];
+  let last = 0;
+  await new Promise<void>((done) => {
+    let i = 0;
+    const tick = (ts: number) => {
+      if (last) out.push(ts - last);
+      last = ts;
+      if (i >= frames) return done();
+      step(i++);
+      requestAnimationFrame(tick);
+    };
+    requestAnimationFrame(tick);
+  });
+  return out;
+}
 
 let setMarksOut: (m: ScoringMark[]) => void = () => {};
 const control: { current: FieldCanvasControl | null } = { current: null };
@@ -96,9 +114,12 @@ interface Timings {
   /** The React commit alone, inside `place`. */
   commit: number[];
   pan: number[];
+  /** rAF-to-rAF intervals while panning every frame. */
+  panFrames: number[];
 }
 
-async function runOurs(nMarks: number, placements: number, panFrames: number): Promise<Timings> {
+async function runOurs(nMarks: number, placements: number, panFrames: number, flush: boolean): Promise<Timings> {
+  FLUSH = flush;
   const rnd = mulberry32(7 + nMarks);
   let marks = makeMarks(nMarks, rnd);
   flushSync(() => setMarksOut(marks));
@@ -130,13 +151,15 @@ async function runOurs(nMarks: number, placements: number, panFrames: number): P
     pan.push(performance.now() - t0);
     await frame();
   }
+  const intervals = await panIntervals((i) => control.current!.panBy(i % 40 < 20 ? 6 : -6, i % 40 < 20 ? 3 : -3), panFrames);
   flushSync(() => setMarksOut([]));
   await settle();
-  return { place, commit, pan };
+  return { place, commit, pan, panFrames: intervals };
 }
 
 /** Baseline: plain Konva, no React, one Circle per mark, the full-size image drawn as is. */
-async function runPlain(nMarks: number, placements: number, panFrames: number): Promise<Timings> {
+async function runPlain(nMarks: number, placements: number, panFrames: number, flush: boolean): Promise<Timings> {
+  FLUSH = flush;
   const host = document.createElement('div');
   document.body.appendChild(host);
   const img = new window.Image();
@@ -189,9 +212,14 @@ async function runPlain(nMarks: number, placements: number, panFrames: number): 
     pan.push(performance.now() - t0);
     await frame();
   }
+  const intervals = await panIntervals((i) => {
+    const dx = i % 40 < 20 ? 6 : -6;
+    stage.position({ x: stage.x() + dx, y: stage.y() + dx / 2 });
+    stage.batchDraw();
+  }, panFrames);
   stage.destroy();
   host.remove();
-  return { place, commit: [], pan };
+  return { place, commit: [], pan, panFrames: intervals };
 }
 
 async function ready() {
