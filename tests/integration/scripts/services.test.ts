@@ -1,0 +1,70 @@
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { createServer, type Server } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+
+// The service scripts on a scratch profile of their own (own ports and data folder).
+const dir = mkdtempSync(join(tmpdir(), 'fm-svc-'));
+const env = {
+  ...process.env,
+  FIELDMARK_PROFILE: 'scratch',
+  DATA_DIR: dir,
+  DB_PORT: '3437',
+  S3_PORT: '4599',
+  SMTP_PORT: '1055',
+  MAIL_WEB_PORT: '1110',
+  PORT: '3199',
+  S3_ENDPOINT: 'http://127.0.0.1:4599',
+  MAIL_WEB_URL: 'http://127.0.0.1:1110',
+};
+const services = (cmd: string) => spawnSync('bash', ['scripts/services.sh', cmd], { env, encoding: 'utf8', timeout: 120_000 });
+const sql = (q: string) => execFileSync('mariadb', ['--no-defaults', `--socket=${dir}/run/mariadb.sock`, '-uroot', '-N', '-e', q], { encoding: 'utf8' }).trim();
+
+function occupy(port: number): Promise<Server> {
+  return new Promise((resolve) => {
+    const s = createServer();
+    s.listen(port, '127.0.0.1', () => resolve(s));
+  });
+}
+
+afterAll(() => {
+  services('stop');
+  rmSync(dir, { recursive: true, force: true });
+});
+
+describe('service scripts', { timeout: 120_000 }, () => {
+  it('start idempotently, and keep data across a stop and a start', () => {
+    const first = services('start');
+    expect(first.status, first.stderr).toBe(0);
+    const again = services('start');
+    expect(again.stdout).toMatch(/MariaDB already up/);
+    expect(again.stdout).toMatch(/s3-fake already up/);
+    sql('CREATE DATABASE IF NOT EXISTS keepcheck; CREATE TABLE keepcheck.t (v varchar(20)); INSERT INTO keepcheck.t VALUES ("still here")');
+    expect(services('stop').status).toBe(0);
+    expect(services('status').stdout).toMatch(/MariaDB .*: down/);
+    expect(services('start').status).toBe(0);
+    expect(sql('SELECT v FROM keepcheck.t')).toBe('still here');
+  });
+
+  it('say clearly when a port is taken', async () => {
+    services('stop');
+    const blocker = await occupy(3437);
+    try {
+      const r = services('start');
+      expect(r.status).toBe(1);
+      expect(r.stderr).toMatch(/port 3437 is taken by another program; set DB_PORT/);
+    } finally {
+      blocker.close();
+    }
+    const app = await occupy(3199);
+    try {
+      const r = spawnSync('bash', ['scripts/start.sh'], { env, encoding: 'utf8', timeout: 120_000 });
+      expect(r.status).toBe(1);
+      expect(r.stderr).toMatch(/port 3199 is already in use/);
+    } finally {
+      app.close();
+    }
+  });
+});
