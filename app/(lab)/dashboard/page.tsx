@@ -1,5 +1,6 @@
 import Link from 'next/link';
-import { getLabOverview } from '@/db/queries/dashboard';
+import { collectionsAwaitingRead, getLabOverview } from '@/db/queries/dashboard';
+import { fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
 
@@ -7,7 +8,7 @@ export const metadata = { title: 'Dashboard' };
 
 export default async function DashboardPage() {
   const user = await requirePageUser(STAFF_ROLES);
-  const o = await getLabOverview();
+  const [o, waiting] = await Promise.all([getLabOverview(), collectionsAwaitingRead()]);
   const tiles = [
     { label: 'Stallions on file', value: o.stallions, href: '/stallions' },
     { label: 'Collections in the last 30 days', value: o.collectionsLast30Days, href: '/collections' },
@@ -29,6 +30,21 @@ export default async function DashboardPage() {
           </li>
         ))}
       </ul>
+      <section aria-labelledby="worklist" className="card">
+        <h2 id="worklist" className="mb-2">Waiting for a first read</h2>
+        {waiting.length === 0 ? (
+          <p className="text-sm text-ink-soft">Every collection with field images has a submitted first read.</p>
+        ) : (
+          <ul className="divide-y divide-line text-sm">
+            {waiting.map((c) => (
+              <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
+                <Link href={`/collections/${c.id}`}>{c.stallion} · {fmtDateTime(c.collectedAt)}</Link>
+                <span className="text-ink-soft">{c.images} image(s) · {c.started ? 'read in progress' : 'not started'}</span>
+              </li>
+            ))}
+          </ul>
+        )}
+      </section>
     </div>
   );
 }
