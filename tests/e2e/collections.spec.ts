@@ -54,9 +54,10 @@ test('lists sort and filter on the server', async ({ page }) => {
   await signIn(page, USERS.vet);
   await page.goto('/stallions');
   const table = page.getByRole('table', { name: 'Stallions' });
-  await expect(table.getByRole('row')).not.toHaveCount(1);
+  await expect(table).toHaveAttribute('aria-busy', 'false');
   await table.getByRole('button', { name: 'Name' }).click();
   await expect(table.getByRole('columnheader', { name: /Name/ })).toHaveAttribute('aria-sort', 'descending');
+  await expect(table).toHaveAttribute('aria-busy', 'false');
   const first = await table.getByRole('row').nth(1).getByRole('cell').first().textContent();
   await page.getByLabel('Search name, breed, owner or number').fill(first!.trim());
   await expect(table.getByRole('row')).toHaveCount(2);
