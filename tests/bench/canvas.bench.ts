@@ -7,8 +7,9 @@
 //   fed marks the way the workbench does (a new array with one more mark).
 // - "Place + repaint": React commit of the new mark list, a synchronous draw of the
 //   marks layer (JavaScript and canvas draw calls).
-// - "Pan frame": the canvas's own panBy once per animation frame (its real path:
-//   stage transform + batchDraw); the rAF-to-rAF interval is the frame time.
+// - "Pan": one step of the canvas's own panBy (stage transform) and a synchronous
+//   draw of every layer. Also the rAF-to-rAF interval while panning every frame, as
+//   headless Chromium paces it (software compositing makes that environment-bound).
 // - A pessimistic table repeats both with a one-pixel read-back after each
 //   synchronous draw, so software rasterisation falls inside the timing.
 // - Baselines in the same run: the same canvas with 0 marks, and plain Konva without
@@ -26,7 +27,6 @@ const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
 const MARKS = 1000;
 const TARGET_MS = 16;
-const FRAME_60 = 16.7;
 
 function arg(name: string, fallback: number): number {
   const i = process.argv.indexOf(`--${name}`);
@@ -86,24 +86,34 @@ async function main() {
 
   const browser = await chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--no-first-run'],
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--no-first-run',
+      ...(process.env.BENCH_CHROMIUM_ARGS ?? '').split(' ').filter(Boolean),
+    ],
   });
   try {
     const page = await browser.newPage({ viewport: { width: 1200, height: 800 }, deviceScaleFactor: 1 });
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(String(e)));
+    if (process.env.BENCH_DEBUG) page.on('console', (m) => console.error(`page: ${m.text()}`));
     await page.goto(`http://127.0.0.1:${port}/`);
     await page.waitForFunction(() => 'ready' in ((window as unknown as { __bench?: object }).__bench ?? {}));
     await page.evaluate(() => (window as unknown as { __bench: { ready(): Promise<void> } }).__bench.ready());
     type Bench = Record<'runOurs' | 'runPlain', (n: number, p: number, f: number, flush: boolean) => Promise<Timings>>;
-    const run = (fn: 'runOurs' | 'runPlain', n: number, flush: boolean) =>
-      page.evaluate(
+    const run = (fn: 'runOurs' | 'runPlain', n: number, flush: boolean, p = placements, fr = frames) => {
+      console.error(`running ${fn} with ${n} marks${flush ? ', read-back' : ''}`);
+      return page.evaluate(
         ([f, n, p, fr, fl]) => (window as unknown as { __bench: Bench }).__bench[f as 'runOurs'](n as number, p as number, fr as number, fl as boolean),
-        [fn, n, placements, frames, flush] as const,
+        [fn, n, p, fr, flush] as const,
       );
+    };
     // Warm-up (JIT, image caches), not reported. Runs without read-back first: once a
     // canvas has been read back, the browser may keep it in a slower mode.
-    await run('runOurs', 200, false);
+    await run('runOurs', 200, false, 10, 10);
     const ours = await run('runOurs', MARKS, false);
     const empty = await run('runOurs', 0, false);
     const plain = await run('runPlain', MARKS, false);
@@ -132,7 +142,12 @@ async function main() {
       ['FieldCanvas, 0 marks (baseline)', empty.place, ours.place],
       [`plain Konva without React, ${MARKS} Circles (baseline)`, plain.place, ours.place],
     ]);
-    table('Pan: one frame as the browser paces it (rAF-to-rAF interval while panning every frame; 16.7 ms = 60 fps)', [
+    table('Pan one step + synchronous Konva draw of every layer (the canvas\'s own panBy)', [
+      [`FieldCanvas, ${MARKS} marks`, ours.pan, null],
+      ['FieldCanvas, 0 marks (baseline)', empty.pan, ours.pan],
+      [`plain Konva without React, full-size image, ${MARKS} Circles (baseline)`, plain.pan, ours.pan],
+    ]);
+    table('Pan as headless Chromium paces it: rAF-to-rAF interval while panning every frame (environment-bound: compare with the 0-mark row)', [
       [`FieldCanvas, ${MARKS} marks`, ours.panFrames, null],
       ['FieldCanvas, 0 marks (baseline)', empty.panFrames, ours.panFrames],
       [`plain Konva without React, full-size image, ${MARKS} Circles (baseline)`, plain.panFrames, ours.panFrames],
@@ -146,9 +161,9 @@ async function main() {
       [`Pan step, plain Konva, full-size image, ${MARKS} Circles (baseline)`, plainR.pan, oursR.pan],
     ]);
     const placeP95 = q(ours.place, 0.95);
-    const panP95 = q(ours.panFrames, 0.95);
+    const panP95 = q(ours.pan, 0.95);
     console.log(`\np95 repaint < ${TARGET_MS} ms: ${placeP95 < TARGET_MS ? 'PASS' : 'FAIL'} (place + repaint p95 ${f(placeP95)} ms)`);
-    console.log(`p95 pan frame ≤ 1 frame at 60 fps (${FRAME_60} ms + 10 % jitter): ${panP95 <= FRAME_60 * 1.1 ? 'PASS' : 'FAIL'} (pan frame p95 ${f(panP95)} ms)`);
+    console.log(`p95 pan frame < ${TARGET_MS} ms: ${panP95 < TARGET_MS ? 'PASS' : 'FAIL'} (pan step + draw p95 ${f(panP95)} ms)`);
   } finally {
     await browser.close();
     server.close();

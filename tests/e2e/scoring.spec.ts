@@ -117,7 +117,7 @@ test('scores cells by key and by click, with a running tally and % normal', asyn
   await clickImage(page, spot(4).x, spot(4).y);
 
   await expect(cells(page)).toHaveAttribute('aria-valuenow', '4');
-  await expect(page.getByText('4 of 200 cells')).toBeVisible();
+  await expect(page.getByText('4 of 200 cells', { exact: true })).toBeVisible();
   // 3 normal of 4 sperm cells = 75.0 % (computed from % normal = normal / cells counted);
   // Wilson 95 % interval for 3/4: 30.1–95.4 % (computed with Newcombe 1998, method 3).
   await expect(page.getByTestId('pct-normal')).toContainText('75.0 % normal');
