@@ -1,6 +1,6 @@
 // Scoring canvas benchmark: place-a-mark and pan frame times with 1,000 marks on a
 // 12-megapixel field (4000 × 3000), in headless Chromium, timed inside the page.
-// Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N]
+// Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N] [--read-back]
 //
 // - The page is tests/bench/canvas/harness.tsx bundled with esbuild: the real
 //   components/scoring/field-canvas.tsx (3 layers, memoised marks, image pyramid),
@@ -10,8 +10,8 @@
 // - "Pan": one step of the canvas's own panBy (stage transform) and a synchronous
 //   draw of every layer. Also the rAF-to-rAF interval while panning every frame, as
 //   headless Chromium paces it (software compositing makes that environment-bound).
-// - A pessimistic table repeats both with a one-pixel read-back after each
-//   synchronous draw, so software rasterisation falls inside the timing.
+// - --read-back adds a pessimistic table: both again with a one-pixel read-back after
+//   each synchronous draw, so software rasterisation falls inside the timing (slow).
 // - Baselines in the same run: the same canvas with 0 marks, and plain Konva without
 //   React (one Circle per mark, the full-size image drawn as is, no pyramid).
 // Exits 0 whatever the numbers are (a measurement, not a test) unless something fails.
@@ -117,9 +117,12 @@ async function main() {
     const ours = await run('runOurs', MARKS, false);
     const empty = await run('runOurs', 0, false);
     const plain = await run('runPlain', MARKS, false);
-    const oursR = await run('runOurs', MARKS, true);
-    const emptyR = await run('runOurs', 0, true);
-    const plainR = await run('runPlain', MARKS, true);
+    // Read-back runs are slow here (minutes): only on request.
+    const readBack = process.argv.includes('--read-back');
+    const none: Timings = { place: [], commit: [], pan: [], panFrames: [] };
+    const oursR = readBack ? await run('runOurs', MARKS, true) : none;
+    const emptyR = readBack ? await run('runOurs', 0, true) : none;
+    const plainR = readBack ? await run('runPlain', MARKS, true) : none;
     if (errors.length) throw new Error(`page errors: ${errors.join('; ')}`);
 
     const f = (v: number) => v.toFixed(2);
@@ -152,7 +155,7 @@ async function main() {
       ['FieldCanvas, 0 marks (baseline)', empty.panFrames, ours.panFrames],
       [`plain Konva without React, full-size image, ${MARKS} Circles (baseline)`, plain.panFrames, ours.panFrames],
     ]);
-    table('Pessimistic: the same with a one-pixel read-back after each draw, forcing software rasterisation inside the timing', [
+    if (readBack) table('Pessimistic: the same with a one-pixel read-back after each draw, forcing software rasterisation inside the timing', [
       [`Place + repaint, FieldCanvas, ${MARKS} marks`, oursR.place, null],
       ['Place + repaint, FieldCanvas, 0 marks (baseline: fixed read-back cost)', emptyR.place, oursR.place],
       [`Place + repaint, plain Konva, ${MARKS} Circles (baseline)`, plainR.place, oursR.place],
