@@ -19,7 +19,8 @@ export function knexConfig(database?: string): Knex.Config {
       // DECIMAL columns come back as numbers, not strings.
       decimalNumbers: true,
     },
-    pool: { min: 0, max: 20 },
+    // Mark saves hold a connection for a short transaction each; many technicians save at once.
+    pool: { min: 0, max: e.DB_POOL_MAX },
     migrations: { directory: './db/migrations', extension: 'ts', loadExtensions: ['.ts'] },
     seeds: { directory: './db/seeds', extension: 'ts', loadExtensions: ['.ts'] },
   };

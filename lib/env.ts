@@ -8,6 +8,7 @@ const schema = z.object({
   DB_USER: z.string().default('fieldmark'),
   DB_PASSWORD: z.string().default('fieldmark-local'),
   DB_SSL: z.enum(['0', '1']).default('0'),
+  DB_POOL_MAX: z.coerce.number().int().min(2).max(500).default(40),
   S3_ENDPOINT: z.string().optional(),
   S3_PUBLIC_ENDPOINT: z.string().optional(),
   S3_BUCKET: z.string().default('fieldmark'),

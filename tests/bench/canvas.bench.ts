@@ -52,8 +52,8 @@ interface Timings {
 }
 
 async function main() {
-  const placements = arg('placements', 100);
-  const frames = arg('frames', 120);
+  const placements = arg('placements', 50);
+  const frames = arg('frames', 50);
 
   const t0 = Date.now();
   const field = await generateField({ seed: 4242, width: 4000, height: 3000, cells: 80, format: 'jpeg', quality: 90 });
