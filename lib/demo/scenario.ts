@@ -26,23 +26,9 @@ export const DEMO_CLIENT_USER_EMAIL = 'owner@quillfield.example';
 // ---------------------------------------------------------------------------
 // Random numbers
 
-export type Random = () => number;
-
-/**
- * Written by us: the mulberry32 algorithm (a tiny public-domain 32-bit generator), uniform in
- * [0, 1). Kept here rather than shared with lib/synthetic so a change there never shifts the
- * demo's values.
- */
-export function mulberry32(seed: number): Random {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+// The project's one PRNG (deterministic: same seed, same numbers on every platform).
+export { mulberry32, type Random } from '../synthetic/prng';
+import { mulberry32, type Random } from '../synthetic/prng';
 
 /** Roughly normal, mean 0, sd ~1, bounded to ±3 (sum of three uniforms). */
 const normalish = (rnd: Random) => (rnd() + rnd() + rnd() - 1.5) * 2;
