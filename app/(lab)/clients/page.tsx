@@ -1,9 +1,12 @@
+import { STAFF_ROLES } from '@/lib/auth/roles';
+import { requirePageUser } from '@/lib/auth/session';
 import { ClientForm } from '@/components/forms/client-form';
 import { ClientsTable } from './_components/clients-table';
 
 export const metadata = { title: 'Clients' };
 
-export default function ClientsPage() {
+export default async function ClientsPage() {
+  await requirePageUser(STAFF_ROLES);
   return (
     <div className="space-y-6">
       <h1>Clients</h1>

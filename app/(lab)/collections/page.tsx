@@ -1,3 +1,5 @@
+import { STAFF_ROLES } from '@/lib/auth/roles';
+import { requirePageUser } from '@/lib/auth/session';
 import Link from 'next/link';
 import { stallionOptions } from '@/db/queries/stallions';
 import { CollectionsTable } from './_components/collections-table';
@@ -5,6 +7,7 @@ import { CollectionsTable } from './_components/collections-table';
 export const metadata = { title: 'Collections' };
 
 export default async function CollectionsPage() {
+  await requirePageUser(STAFF_ROLES);
   const stallions = await stallionOptions();
   return (
     <div className="space-y-4">

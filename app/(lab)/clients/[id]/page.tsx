@@ -1,3 +1,5 @@
+import { STAFF_ROLES } from '@/lib/auth/roles';
+import { requirePageUser } from '@/lib/auth/session';
 import { notFound } from 'next/navigation';
 import { ClientForm } from '@/components/forms/client-form';
 import { getClient } from '@/db/queries/clients';
@@ -6,6 +8,7 @@ import { StallionsTable } from '../../stallions/_components/stallions-table';
 export const metadata = { title: 'Client' };
 
 export default async function ClientPage({ params }: { params: Promise<{ id: string }> }) {
+  await requirePageUser(STAFF_ROLES);
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
   const c = await getClient(Number(id)).catch(() => null);
