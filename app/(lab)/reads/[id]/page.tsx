@@ -5,7 +5,6 @@ import { getReadDetail } from '@/db/queries/reads';
 import { ApiError } from '@/lib/api/errors';
 import { STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
-import { fmtDateTime } from '@/lib/format';
 
 export const metadata = { title: 'Read' };
 
@@ -26,8 +25,8 @@ export default async function ReadPage({ params }: { params: Promise<{ id: strin
   const { read } = data;
   return (
     <div className="space-y-3">
-      <p className="text-sm text-ink-soft">
-        <Link href={`/collections/${read.collectionId}`}>{read.stallion} · collection of {fmtDateTime(read.collectedAt)}</Link> · {read.kind} read by {read.readerName}
+      <p className="text-sm">
+        <Link href={`/collections/${read.collectionId}`}>← Back to the collection</Link>
       </p>
       <ScoringWorkbench initial={data} />
     </div>
