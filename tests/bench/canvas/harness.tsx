@@ -8,6 +8,7 @@ import { FieldCanvas, type FieldCanvasControl } from '@/components/scoring/field
 import type { FieldImageRef } from '@/components/scoring/types';
 import { DEFAULT_CLASS_SET } from '@/lib/class-sets/default-set';
 import type { ScoringMark } from '@/lib/scoring/types';
+import { mulberry32 } from '@/lib/synthetic/prng';
 
 const W = 4000;
 const H = 3000;
@@ -24,16 +25,6 @@ const image: FieldImageRef = {
 const classes = new Map(DEFAULT_CLASS_SET.classes.map((c) => [c.key, c]));
 const keys = [...classes.keys()];
 
-function mulberry32(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 let counter = 0;
 function makeMarks(n: number, rnd: () => number): ScoringMark[] {

@@ -1,13 +1,8 @@
 import { expect, type Page } from '@playwright/test';
 
-export const DEMO_PASSWORD = 'quillfield-demo';
-export const USERS = {
-  tech: 'tech@quillfield.example',
-  reader: 'reader@quillfield.example',
-  vet: 'vet@quillfield.example',
-  manager: 'manager@quillfield.example',
-  owner: 'owner@quillfield.example',
-};
+import { DEMO_PASSWORD, USERS } from '../../support/demo-users';
+
+export { DEMO_PASSWORD, USERS };
 
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
   await page.goto('/sign-in');

@@ -1,6 +1,8 @@
+import { DEMO_PASSWORD, USERS } from '../../support/demo-users';
+
+export { DEMO_PASSWORD, USERS };
 // An HTTP client that signs in through next-auth's credentials flow and keeps the cookies.
 export const APP_URL = process.env.APP_URL ?? 'http://localhost:3100';
-export const DEMO_PASSWORD = 'quillfield-demo';
 
 export class Session {
   private cookies = new Map<string, string>();
@@ -70,11 +72,3 @@ export async function signedIn(email: string): Promise<Session> {
   if (err) throw new Error(`sign-in as ${email} failed: ${err}`);
   return s;
 }
-
-export const USERS = {
-  tech: 'tech@quillfield.example',
-  reader: 'reader@quillfield.example',
-  vet: 'vet@quillfield.example',
-  manager: 'manager@quillfield.example',
-  owner: 'owner@quillfield.example',
-};
