@@ -1,7 +1,7 @@
 'use client';
 
 import type Konva from 'konva';
-import { memo, useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type RefObject } from 'react';
+import { useCallback, useEffect, useLayoutEffect, useRef, useState, type RefObject } from 'react';
 import { Circle, Image as KonvaImage, Layer, Shape, Stage } from 'react-konva';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import type { ScoringMark } from '@/lib/scoring/types';
@@ -86,30 +86,27 @@ function levelFor(levels: readonly Source[], scale: number): Source | undefined 
   return levels[Math.max(0, Math.min(levels.length - 1, k))];
 }
 
-interface MarkNodeProps {
-  mark: ScoringMark;
-  shape: MarkClass['shape'];
-  colour: string;
-  radius: number;
-  hidden: boolean;
+/**
+ * Draws every mark of the image in one pass. One Konva shape for all marks keeps a
+ * placement to a constant amount of React work (no node per mark to reconcile or
+ * allocate); hit testing is our own (hitTest), so the marks need no Konva hit graph.
+ */
+function drawMarks(
+  c: CanvasRenderingContext2D,
+  marks: readonly ScoringMark[],
+  classes: ReadonlyMap<string, MarkClass>,
+  radius: number,
+  skipId: string | null,
+) {
+  for (const m of marks) {
+    if (m.id === skipId) continue;
+    const cls = classes.get(m.classKey) ?? FALLBACK_CLASS;
+    const draw = markerDrawer(cls.shape, cls.colour, radius, m.tags.length > 0);
+    c.translate(m.x, m.y);
+    draw(c);
+    c.translate(-m.x, -m.y);
+  }
 }
-
-/** One mark; memoised so placing a mark re-renders one node, not every mark. */
-const MarkNode = memo(function MarkNode({ mark, shape, colour, radius, hidden }: MarkNodeProps) {
-  const draw = markerDrawer(shape, colour, radius, mark.tags.length > 0);
-  const sceneFunc = useCallback((ctx: Konva.Context) => draw(ctx._context), [draw]);
-  return (
-    <Shape
-      x={mark.x}
-      y={mark.y}
-      visible={!hidden}
-      listening={false}
-      perfectDrawEnabled={false}
-      shadowForStrokeEnabled={false}
-      sceneFunc={sceneFunc}
-    />
-  );
-});
 
 export function FieldCanvas(props: FieldCanvasProps) {
   const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef } = props;
@@ -380,13 +377,10 @@ export function FieldCanvas(props: FieldCanvasProps) {
     }
   };
 
-  const byId = useMemo(() => {
-    const m = new Map<string, ScoringMark>();
-    for (const mk of marks) m.set(mk.id, mk);
-    return m;
-  }, [marks]);
-  const selected = selectedId ? byId.get(selectedId) : undefined;
-  const dragged = draggingId ? byId.get(draggingId) : undefined;
+  // A new function when the marks, their size or the dragged mark change: react-konva then redraws the layer.
+  const marksScene = useCallback((ctx: Konva.Context) => drawMarks(ctx._context, marks, classes, radius, draggingId), [marks, classes, radius, draggingId]);
+  const selected = selectedId ? marks.find((m) => m.id === selectedId) : undefined;
+  const dragged = draggingId ? marks.find((m) => m.id === draggingId) : undefined;
   const draggedClass = dragged ? (classes.get(dragged.classKey) ?? FALLBACK_CLASS) : null;
   const cursorClass = currentClass ?? FALLBACK_CLASS;
   const cursorDraw = markerDrawer(cursorClass.shape, cursorClass.colour, radius, false);
@@ -416,10 +410,7 @@ export function FieldCanvas(props: FieldCanvasProps) {
             {source && <KonvaImage image={source as CanvasImageSource} width={image.width} height={image.height} listening={false} perfectDrawEnabled={false} />}
           </Layer>
           <Layer listening={false} visible={marksVisible}>
-            {marks.map((m) => {
-              const cls = classes.get(m.classKey) ?? FALLBACK_CLASS;
-              return <MarkNode key={m.id} mark={m} shape={cls.shape} colour={cls.colour} radius={radius} hidden={m.id === draggingId} />;
-            })}
+            <Shape listening={false} perfectDrawEnabled={false} shadowForStrokeEnabled={false} sceneFunc={marksScene} />
           </Layer>
           <Layer ref={overlayRef} listening={false}>
             {selected && marksVisible && !dragged && (

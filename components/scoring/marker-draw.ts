@@ -20,8 +20,7 @@ const cache = new Map<string, Draw>();
 
 /**
  * A drawing function for one marker look, centred on (0, 0). Cached by look, so
- * thousands of marks share a handful of functions and Path2D objects, and memoised
- * mark components keep the same props across renders.
+ * thousands of marks share a handful of functions and Path2D objects.
  */
 export function markerDrawer(shape: MarkerShape, colour: string, radius: number, tagged: boolean): Draw {
   const key = `${shape}|${colour}|${radius}|${tagged ? 1 : 0}`;

@@ -146,7 +146,7 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
         let changed = merged.length !== current.size;
         for (const m of merged) {
           const mine = current.get(m.id);
-          // Keep our object when nothing changed, so memoised marks do not redraw.
+          // Keep our map when nothing changed, so the canvas and tally do not redraw.
           if (mine && (mine === m || sameMark(mine, m))) next.set(m.id, mine);
           else {
             next.set(m.id, m);

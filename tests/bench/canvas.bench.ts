@@ -3,7 +3,7 @@
 // Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N] [--read-back]
 //
 // - The page is tests/bench/canvas/harness.tsx bundled with esbuild: the real
-//   components/scoring/field-canvas.tsx (3 layers, memoised marks, image pyramid),
+//   components/scoring/field-canvas.tsx (3 layers, every mark drawn by one shape, image pyramid),
 //   fed marks the way the workbench does (a new array with one more mark).
 // - "Place + repaint": React commit of the new mark list, a synchronous draw of the
 //   marks layer (JavaScript and canvas draw calls).
