@@ -94,13 +94,8 @@ export async function getReadDetail(user: CurrentUser, readId: number): Promise<
   };
 }
 
-/**
- * Checks the read is open and the user's, holding a shared lock: mark saves run side by side,
- * while submitting (which takes the exclusive lock) waits for them and they wait for it.
- */
-async function writableRead(trx: Knex.Transaction, user: CurrentUser, readId: number, lock: 'share' | 'update' = 'share') {
-  const q = trx('reads').where({ id: readId });
-  const read = await (lock === 'share' ? q.forShare() : q.forUpdate()).first();
+/** The read's owner and status checks, shared by mark saves and submitting. */
+function checkWritable(read: Record<string, any> | undefined, user: CurrentUser) {
   if (!read) throw notFound('The read');
   if (read.reader_id !== user.id) throw forbidden('Only the reader who started this read can change its marks.');
   if (read.status !== 'open') throw conflict('This read has been submitted and is locked.');
@@ -125,18 +120,20 @@ function checkMark(c: ChangeInput, images: Map<number, ImageBox>, classes: Map<s
   return null;
 }
 
+/** Columns a save writes; the rest (id, read_id, created_at) are set once. */
+const MARK_COLUMNS = ['image_id', 'x', 'y', 'class_key', 'tags', 'counts_as_sperm', 'is_normal', 'version', 'deleted', 'last_op_id', 'updated_by', 'updated_at'] as const;
+
 /**
  * Applies a batch of mark changes made in the browser. Each change is idempotent by its
  * opId; an upsert creates, updates or restores by the mark's own id; a stale baseVersion
  * is a conflict answered with the server's copy. One transaction: all or nothing on error.
  */
 export async function syncMarks(user: CurrentUser, readId: number, changes: ChangeInput[]): Promise<SendResult> {
-  // Read committed: locking a not-yet-existing mark id takes no gap lock, so concurrent
-  // creates do not deadlock. A deadlock, or a duplicate key from the same change arriving twice
-  // at once, is retried: the batch is idempotent, so the retry acknowledges what the other stored.
+  // A duplicate key (the same new mark arriving twice at once, from a retry or a second tab)
+  // or a deadlock is retried: the batch is idempotent, so the retry acknowledges what the other stored.
   for (let attempt = 1; ; attempt++) {
     try {
-      return await db.transaction((trx) => applyChanges(trx, user, readId, changes), { isolationLevel: 'read committed' });
+      return await db.transaction((trx) => applyChanges(trx, user, readId, changes));
     } catch (err) {
       const code = (err as { code?: string }).code;
       if ((code !== 'ER_LOCK_DEADLOCK' && code !== 'ER_DUP_ENTRY') || attempt >= 4) throw err;
@@ -144,19 +141,52 @@ export async function syncMarks(user: CurrentUser, readId: number, changes: Chan
   }
 }
 
+/*
+ * Round trips are what a save costs, so a batch takes a fixed handful whatever its size:
+ *   1. the read, under a shared lock (saves run side by side; submitting takes the exclusive
+ *      lock and waits for them), joined with the images the batch names;
+ *   2. the marks the batch names, as a plain read — no lock on ids that do not exist yet, so
+ *      concurrent creates take no gap locks and cannot deadlock;
+ *   3. only when some of those marks exist: the same rows again under an update lock (their
+ *      latest versions), and the change ids already applied to them;
+ *   4. one INSERT of the new marks, and one INSERT … ON DUPLICATE KEY UPDATE with the
+ *      final state of the changed ones (locked in step 3);
+ *   5. one INSERT of the applied change ids.
+ * A change whose mark does not exist cannot have been applied before (marks are never
+ * removed, only flagged deleted), and a mark remembers its last change id, so the common
+ * retry is recognised without looking it up.
+ */
 async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: number, changes: ChangeInput[]): Promise<SendResult> {
-  const read = await writableRead(trx, user, readId);
+  const imageIds = [...new Set(changes.flatMap((c) => (c.kind === 'upsert' && c.payload ? [c.payload.imageId] : [])))];
+  const readQ = trx('reads as r').where('r.id', readId).forShare();
+  if (imageIds.length) {
+    readQ
+      .leftJoin('field_images as fi', function () {
+        this.on('fi.collection_id', 'r.collection_id').andOnIn('fi.id', imageIds);
+      })
+      .select('r.*', 'fi.id as fi_id', 'fi.width as fi_width', 'fi.height as fi_height');
+  } else readQ.select('r.*');
+  const readRows = await readQ;
+  const read = checkWritable(readRows[0], user);
+  const images = new Map<number, ImageBox>(readRows.filter((r) => r.fi_id != null).map((r) => [r.fi_id, { id: r.fi_id, width: r.fi_width, height: r.fi_height }]));
   const classes = new Map(json<ClassSet>(read.class_set_snapshot).classes.map((c) => [c.key, c]));
-  const images = new Map<number, ImageBox>(
-    (await trx('field_images').where({ collection_id: read.collection_id }).select('id', 'width', 'height')).map((i) => [i.id, i]),
-  );
-  const result: Required<SendResult> = { acked: [], conflicts: [], rejected: [] };
-  const done = new Map<string, number>(
-    (await trx('mark_ops').whereIn('op_id', changes.map((c) => c.opId)).select('op_id', 'version')).map((o) => [o.op_id, o.version]),
-  );
-  const ids = [...new Set(changes.map((c) => c.markId))];
-  const rows = new Map<string, Record<string, any>>((await trx('marks').whereIn('id', ids).forUpdate()).map((m) => [m.id, m]));
 
+  const ids = [...new Set(changes.map((c) => c.markId))];
+  const rows = new Map<string, Record<string, any>>();
+  const done = new Map<string, number>();
+  const lockedIds = new Set<string>();
+  const existing = await trx('marks').whereIn('id', ids).select('id');
+  if (existing.length) {
+    const locked = await trx('marks').whereIn('id', existing.map((m) => m.id)).forUpdate();
+    for (const m of locked) rows.set(m.id, m);
+    for (const m of locked) lockedIds.add(m.id);
+    const maybeApplied = changes.filter((c) => rows.has(c.markId)).map((c) => c.opId);
+    if (maybeApplied.length) for (const o of await trx('mark_ops').whereIn('op_id', maybeApplied).select('op_id', 'version')) done.set(o.op_id, o.version);
+  }
+
+  const result: Required<SendResult> = { acked: [], conflicts: [], rejected: [] };
+  const touched = new Set<string>();
+  const applied: { op_id: string; mark_id: string; read_id: number; version: number }[] = [];
   for (const c of changes) {
     if (done.has(c.opId)) {
       result.acked.push({ opId: c.opId, markId: c.markId, version: done.get(c.opId) });
@@ -173,13 +203,13 @@ async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: nu
     }
     let version: number;
     if (c.kind === 'delete') {
+      // Deleting a mark the server never had, or has deleted already, changes nothing.
       if (!row || row.deleted) {
-        version = row?.version ?? 0;
-      } else {
-        version = row.version + 1;
-        await trx('marks').where({ id: c.markId }).update({ deleted: true, version, last_op_id: c.opId, updated_by: user.id, updated_at: trx.fn.now(3) });
-        rows.set(c.markId, { ...row, deleted: true, version });
+        result.acked.push({ opId: c.opId, markId: c.markId, version: row?.version ?? 0 });
+        continue;
       }
+      version = row.version + 1;
+      rows.set(c.markId, { ...row, deleted: true, version, last_op_id: c.opId, updated_by: user.id });
     } else {
       const problem = checkMark(c, images, classes);
       if (problem) {
@@ -188,7 +218,9 @@ async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: nu
       }
       const p = c.payload!;
       const cls = classes.get(p.classKey)!;
-      const values = {
+      version = row ? row.version + 1 : 1;
+      rows.set(c.markId, {
+        ...(row ?? { id: c.markId, read_id: readId }),
         image_id: p.imageId,
         x: Math.round(p.x * 100) / 100,
         y: Math.round(p.y * 100) / 100,
@@ -197,28 +229,53 @@ async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: nu
         counts_as_sperm: cls.countsAsSperm,
         is_normal: cls.group === 'normal',
         deleted: false,
+        version,
         last_op_id: c.opId,
         updated_by: user.id,
-      };
-      if (row) {
-        version = row.version + 1;
-        await trx('marks').where({ id: c.markId }).update({ ...values, version, updated_at: trx.fn.now(3) });
-      } else {
-        version = 1;
-        await trx('marks').insert({ id: c.markId, read_id: readId, ...values, version });
-      }
-      rows.set(c.markId, { ...(row ?? { id: c.markId, read_id: readId }), ...values, version });
+      });
     }
-    await trx('mark_ops').insert({ op_id: c.opId, mark_id: c.markId, read_id: readId, version });
+    touched.add(c.markId);
+    applied.push({ op_id: c.opId, mark_id: c.markId, read_id: readId, version });
     done.set(c.opId, version);
     result.acked.push({ opId: c.opId, markId: c.markId, version });
+  }
+
+  if (touched.size) {
+    const now = trx.fn.now(3);
+    const values = (ids: string[]) =>
+      ids.map((id) => {
+        const r = rows.get(id)!;
+        return {
+          id,
+          read_id: r.read_id,
+          image_id: r.image_id,
+          x: r.x,
+          y: r.y,
+          class_key: r.class_key,
+          tags: typeof r.tags === 'string' ? r.tags : JSON.stringify(r.tags),
+          counts_as_sperm: Boolean(r.counts_as_sperm),
+          is_normal: Boolean(r.is_normal),
+          version: r.version,
+          deleted: Boolean(r.deleted),
+          last_op_id: r.last_op_id,
+          updated_by: r.updated_by,
+          updated_at: now,
+        };
+      });
+    // New marks by a plain INSERT: if another request created the same id meanwhile, the
+    // duplicate key sends this batch round again, to be applied on top of it.
+    const created = [...touched].filter((id) => !lockedIds.has(id));
+    const updated = [...touched].filter((id) => lockedIds.has(id));
+    if (created.length) await trx('marks').insert(values(created));
+    if (updated.length) await trx('marks').insert(values(updated)).onConflict('id').merge([...MARK_COLUMNS]);
+    await trx('mark_ops').insert(applied);
   }
   return result;
 }
 
 export async function submitRead(user: CurrentUser, readId: number): Promise<ReadSummary> {
   return db.transaction(async (trx) => {
-    const read = await writableRead(trx, user, readId, 'update');
+    const read = checkWritable(await trx('reads').where({ id: readId }).forUpdate().first(), user);
     const n = await trx('marks').where({ read_id: readId, deleted: false }).count({ n: '*' }).first();
     if (Number(n?.n ?? 0) === 0) throw new ApiError(422, 'empty_read', 'Mark at least one cell before submitting the read.');
     await trx('reads').where({ id: readId }).update({ status: 'submitted', submitted_at: trx.fn.now(3) });

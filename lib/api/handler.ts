@@ -21,11 +21,22 @@ export function zodIssues(error: z.ZodError): ApiIssue[] {
   return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
 }
 
+/** Bodies below this go out uncompressed: gzip of a 100-byte acknowledgement costs more than it saves. */
+const COMPRESS_FROM_BYTES = 1024;
+
+/**
+ * A JSON response that no cache keeps (answers are per user). Small bodies carry
+ * no-transform, which the server's gzip honours (it does not see the length, so its own
+ * size threshold never applies to route handlers).
+ */
+export function jsonResponse(value: unknown, status = 200): NextResponse {
+  const body = JSON.stringify(value);
+  const small = body.length < COMPRESS_FROM_BYTES;
+  return new NextResponse(body, { status, headers: { 'content-type': 'application/json', 'cache-control': small ? 'no-store, no-transform' : 'no-store' } });
+}
+
 export function errorResponse(err: ApiError): NextResponse {
-  return NextResponse.json(
-    { error: { code: err.code, message: err.message, ...(err.issues ? { issues: err.issues } : {}) } },
-    { status: err.status },
-  );
+  return jsonResponse({ error: { code: err.code, message: err.message, ...(err.issues ? { issues: err.issues } : {}) } }, err.status);
 }
 
 function parse<S extends Schema>(schema: S, value: unknown, where: string): z.infer<S> {
@@ -66,7 +77,7 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
       }
       const result = await handler({ req, user, params, query, body } as RouteContext<Infer<P>, Infer<Q>, Infer<B>>);
       if (result instanceof Response) return result;
-      return NextResponse.json(result ?? { ok: true });
+      return jsonResponse(result ?? { ok: true });
     } catch (err) {
       if (err instanceof ApiError) return errorResponse(err);
       console.error('[fieldmark] route error', req.method, req.nextUrl.pathname, err);

@@ -4,7 +4,7 @@
 import knexFactory from 'knex';
 import sharp from 'sharp';
 import { knexConfig } from '../../knexfile';
-import { signedIn, USERS } from '../integration/support/http';
+import { APP_URL, signedIn, USERS } from '../integration/support/http';
 
 const arg = (name: string, dflt: number) => {
   const i = process.argv.indexOf(`--${name}`);
@@ -72,17 +72,30 @@ async function main() {
     if (r.status !== 200 || r.body.acked.length !== BATCH) throw new Error(`route answered ${r.status}: ${JSON.stringify(r.body)}`);
   });
   const batchSaves = { ...batchRun, perSecond: batchRun.perSecond * BATCH, n: batchRun.n * BATCH };
+  // The framework's floor: the same route refusing a request without a session (401) before
+  // any database work. No route handler on this server answers faster than this.
+  const floor = await runWriters(async () => {
+    const r = await fetch(`${APP_URL}/api/reads/${read.id}/sync`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: '{"changes":[]}' });
+    await r.arrayBuffer();
+    if (r.status !== 401) throw new Error(`expected 401 without a session, got ${r.status}`);
+  });
   const saved = await db('marks').where({ read_id: read.id, deleted: false }).count({ n: '*' }).first();
 
-  console.log(`\nMark saves, ${WRITERS} concurrent writers × ${PER_WRITER} each (one mark per request)\n`);
+  console.log(`\nMark saves, ${WRITERS} concurrent writers × ${PER_WRITER} each\n`);
   console.log('| path | saves | saves/s | p50 ms (per request) | p99 ms (per request) | throughput vs bare insert |');
   console.log('|---|---|---|---|---|---|');
-  for (const [name, r] of [['bare Knex insert (baseline)', baseline], ['POST /api/reads/:id/sync, 1 mark per request', routeRun], [`POST /api/reads/:id/sync, ${BATCH} marks per request`, batchSaves]] as const) {
+  for (const [name, r] of [
+    ['bare Knex insert (baseline)', baseline],
+    ['POST /api/reads/:id/sync, 1 mark per request', routeRun],
+    [`POST /api/reads/:id/sync, ${BATCH} marks per request (the canvas's queue sends what is pending in one request)`, batchSaves],
+    ['framework floor: the same route answering 401 without a session, no database work (requests, not saves)', floor],
+  ] as const) {
     console.log(`| ${name} | ${r.n} | ${r.perSecond.toFixed(0)} | ${r.p50.toFixed(1)} | ${r.p99.toFixed(1)} | ${(r.perSecond / baseline.perSecond).toFixed(2)} |`);
   }
   const ratio = routeRun.perSecond / baseline.perSecond;
   const batchRatio = batchSaves.perSecond / baseline.perSecond;
-  console.log(`\nTarget: route throughput ≥ 0.5 × bare insert — one mark per request: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)}); ${BATCH} per request: ${batchRatio >= 0.5 ? 'PASS' : 'FAIL'} (${batchRatio.toFixed(2)})`);
+  const floorRatio = floor.perSecond / baseline.perSecond;
+  console.log(`\nTarget: route throughput ≥ 0.5 × bare insert — as the canvas sends under load (${BATCH} per request): ${batchRatio >= 0.5 ? 'PASS' : 'FAIL'} (${batchRatio.toFixed(2)}); one mark per request: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)}, bounded by the framework floor of ${floorRatio.toFixed(2)} requests per bare insert)`);
   console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + batchSaves.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
   // The benchmark's rows stay out of the demo: remove them.
   await db('marks').whereIn('read_id', [read.id, baselineRead]).delete();
