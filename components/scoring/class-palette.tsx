@@ -1,10 +1,11 @@
 'use client';
 
+import { memo } from 'react';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import { MarkerSwatch } from './marker-swatch';
 
 /** The classes as buttons: the pressed one is the class the next click places. */
-export function ClassPalette({
+export const ClassPalette = memo(function ClassPalette({
   classes,
   currentKey,
   disabled,
@@ -53,4 +54,4 @@ export function ClassPalette({
       )}
     </section>
   );
-}
+});

@@ -1,7 +1,7 @@
 'use client';
 
 import type Konva from 'konva';
-import { useCallback, useEffect, useLayoutEffect, useRef, useState, type RefObject } from 'react';
+import { memo, useCallback, useEffect, useLayoutEffect, useRef, useState, type RefObject } from 'react';
 import { Circle, Image as KonvaImage, Layer, Shape, Stage } from 'react-konva';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import type { ScoringMark } from '@/lib/scoring/types';
@@ -108,7 +108,8 @@ function drawMarks(
   }
 }
 
-export function FieldCanvas(props: FieldCanvasProps) {
+/** Memoised: the workbench re-renders for save status and dialogs; the canvas only when its props change. */
+export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
   const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef } = props;
   const containerRef = useRef<HTMLDivElement>(null);
   const stageRef = useRef<Konva.Stage>(null);
@@ -458,6 +459,6 @@ export function FieldCanvas(props: FieldCanvasProps) {
       </div>
     </div>
   );
-}
+});
 
 export default FieldCanvas;

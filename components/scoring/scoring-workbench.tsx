@@ -306,6 +306,17 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
     });
   };
 
+  // Stable callbacks for the memoised canvas and palette, calling this render's handlers.
+  const handlers = useRef({ place, move, chooseClass });
+  handlers.current = { place, move, chooseClass };
+  const onPlace = useCallback((x: number, y: number) => handlers.current.place(x, y), []);
+  const onMove = useCallback((id: string, x: number, y: number) => handlers.current.move(id, x, y), []);
+  const onChoose = useCallback((key: string) => handlers.current.chooseClass(key), []);
+  const onSelect = useCallback((id: string | null) => {
+    setSelectedId(id);
+    if (!id) setTagsOpen(false);
+  }, []);
+
   // One keyboard handler for the whole workbench; see the "Keys and mouse" help.
   const keyHandler = useRef<(e: KeyboardEvent) => void>(() => {});
   keyHandler.current = (e: KeyboardEvent) => {
@@ -552,12 +563,9 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
                 marksVisible={marksVisible}
                 readOnly={!canEdit}
                 currentClass={currentClass}
-                onPlace={place}
-                onSelect={(id) => {
-                  setSelectedId(id);
-                  if (!id) setTagsOpen(false);
-                }}
-                onMove={move}
+                onPlace={onPlace}
+                onSelect={onSelect}
+                onMove={onMove}
                 controlRef={controlRef}
               />
             ) : (
@@ -596,7 +604,7 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
 
         <aside aria-label="Scoring panel" className="space-y-4 rounded-lg border border-line bg-paper-raised p-3">
           <fieldset disabled={!canEdit} className="space-y-2 disabled:opacity-60">
-            <ClassPalette classes={classList} currentKey={currentKey} disabled={!canEdit} onChoose={chooseClass} />
+            <ClassPalette classes={classList} currentKey={currentKey} disabled={!canEdit} onChoose={onChoose} />
             <label className="flex items-start gap-2 text-sm">
               <input type="checkbox" className="mt-0.5" checked={keepClass} onChange={(e) => setKeepClass(e.target.checked)} />
               <span>

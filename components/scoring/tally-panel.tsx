@@ -1,12 +1,13 @@
 'use client';
 
+import { memo } from 'react';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import type { ImageTally, MorphologyTally } from '@/lib/morphology/tally';
 import { MarkerSwatch } from './marker-swatch';
 import { formatPct } from './tally';
 
 /** Running counts for the image on screen and the whole read, with % normal and progress to the target. */
-export function TallyPanel({
+export const TallyPanel = memo(function TallyPanel({
   classes,
   read,
   image,
@@ -120,4 +121,4 @@ export function TallyPanel({
       )}
     </section>
   );
-}
+});
