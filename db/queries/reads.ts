@@ -180,7 +180,11 @@ async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: nu
     const locked = await trx('marks').whereIn('id', existing.map((m) => m.id)).forUpdate();
     for (const m of locked) rows.set(m.id, m);
     for (const m of locked) lockedIds.add(m.id);
-    const maybeApplied = changes.filter((c) => rows.has(c.markId)).map((c) => c.opId);
+    for (const c of changes) {
+      const r = rows.get(c.markId);
+      if (r && r.last_op_id === c.opId) done.set(c.opId, r.version);
+    }
+    const maybeApplied = changes.filter((c) => rows.has(c.markId) && !done.has(c.opId)).map((c) => c.opId);
     if (maybeApplied.length) for (const o of await trx('mark_ops').whereIn('op_id', maybeApplied).select('op_id', 'version')) done.set(o.op_id, o.version);
   }
 

@@ -66,6 +66,69 @@ describe('marks', () => {
     expect(await testDb()('mark_ops').where({ op_id: change.opId })).toHaveLength(1);
   });
 
+  it('answers a resent change that a later change superseded, without applying it again', async () => {
+    const { imageId, readId } = await setUp();
+    const id = uuid();
+    const create = upsert(id, imageId);
+    await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes: [create] });
+    const move = upsert(id, imageId, { x: 400, y: 410 });
+    expect((await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes: [move] })).body.acked[0].version).toBe(2);
+    // The first answer was lost on the way back: the browser sends the create again, then the move.
+    const resent = await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes: [create, move] });
+    expect(resent.status).toBe(200);
+    expect(resent.body.acked.map((a: { version: number }) => a.version)).toEqual([1, 2]);
+    const row = await testDb()('marks').where({ id }).first();
+    expect([Number(row.x), Number(row.y), row.version, row.last_op_id]).toEqual([400, 410, 2, move.opId]);
+    expect(await testDb()('mark_ops').where({ mark_id: id })).toHaveLength(2);
+  });
+
+  it('applies a batch of new, changed and deleted marks together, each once', async () => {
+    const { imageId, readId } = await setUp();
+    const [a, b, c, never] = [uuid(), uuid(), uuid(), uuid()];
+    await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes: [upsert(c, imageId, { x: 50, y: 60 })] });
+    const changes = [
+      upsert(a, imageId, { x: 10, y: 20 }),
+      upsert(b, imageId, { x: 30, y: 40, classKey: 'detached_head' }),
+      upsert(a, imageId, { x: 11, y: 21, classKey: 'bent_coiled_tail' }),
+      { opId: uuid(), markId: c, kind: 'delete', payload: null, baseVersion: 1 },
+      { opId: uuid(), markId: never, kind: 'delete', payload: null },
+    ];
+    const r = await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes });
+    expect(r.status).toBe(200);
+    expect(r.body.acked.map((x: { markId: string; version: number }) => [x.markId, x.version])).toEqual([
+      [a, 1],
+      [b, 1],
+      [a, 2],
+      [c, 2],
+      [never, 0],
+    ]);
+    const rows = new Map<string, Record<string, any>>((await testDb()('marks').where({ read_id: readId })).map((m: Record<string, any>) => [m.id, m]));
+    const row = (id: string) => rows.get(id)!;
+    expect(rows.size).toBe(3);
+    expect([Number(row(a).x), row(a).class_key, row(a).version]).toEqual([11, 'bent_coiled_tail', 2]);
+    expect([row(b).class_key, !!row(b).is_normal]).toEqual(['detached_head', false]);
+    expect([!!row(c).deleted, row(c).version]).toEqual([true, 2]);
+    // Deleting a mark the server never had changes nothing and is not recorded.
+    expect(await testDb()('mark_ops').where({ read_id: readId })).toHaveLength(5);
+    const again = await tech.json(`/api/reads/${readId}/sync`, 'POST', { changes });
+    expect(again.body.acked).toEqual(r.body.acked);
+    expect(await testDb()('mark_ops').where({ read_id: readId })).toHaveLength(5);
+  });
+
+  it('stores a new mark once when the same save arrives twice at the same moment', async () => {
+    const { imageId, readId } = await setUp();
+    const change = upsert(uuid(), imageId);
+    const answers = await Promise.all([0, 1, 2, 3].map(() => tech.json(`/api/reads/${readId}/sync`, 'POST', { changes: [change] })));
+    expect(answers.map((a) => [a.status, a.body.acked[0]?.version])).toEqual([
+      [200, 1],
+      [200, 1],
+      [200, 1],
+      [200, 1],
+    ]);
+    expect(await liveMarks(readId)).toHaveLength(1);
+    expect(await testDb()('mark_ops').where({ op_id: change.opId })).toHaveLength(1);
+  });
+
   it('answers a stale version with the server copy (two tabs)', async () => {
     const { imageId, readId } = await setUp();
     const id = uuid();
