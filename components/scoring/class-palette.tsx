@@ -32,7 +32,10 @@ export const ClassPalette = memo(function ClassPalette({
           <MarkerSwatch shape={c.shape} colour={c.colour} />
         </span>
         <span className="flex-1 leading-tight">{c.name}</span>
-        {c.hotkey && <kbd className="rounded border border-line bg-paper px-1.5 font-mono text-xs text-ink-soft">{c.hotkey}</kbd>}
+        {c.hotkey && (
+          // Key caps show letters in capitals, as keyboards do: "L" cannot be misread as "1".
+          <kbd className="rounded border border-line bg-paper px-1.5 font-mono text-xs text-ink-soft">{c.hotkey.toUpperCase()}</kbd>
+        )}
       </button>
     </li>
   );

@@ -62,13 +62,13 @@ export const TallyPanel = memo(function TallyPanel({
             <th scope="col" className="py-1 text-left font-medium text-ink-soft">
               Class
             </th>
-            <th scope="col" className="py-1 text-right font-medium text-ink-soft" title={imageLabel}>
+            <th scope="col" className="py-1 pl-2 text-right font-medium text-ink-soft" title={imageLabel}>
               This image
             </th>
-            <th scope="col" className="py-1 text-right font-medium text-ink-soft">
+            <th scope="col" className="py-1 pl-2 text-right font-medium text-ink-soft">
               Read
             </th>
-            <th scope="col" className="py-1 text-right font-medium text-ink-soft">
+            <th scope="col" className="py-1 pl-2 text-right font-medium text-ink-soft">
               % of cells
             </th>
           </tr>
@@ -84,18 +84,18 @@ export const TallyPanel = memo(function TallyPanel({
                   {c.name}
                 </span>
               </th>
-              <td className="py-1 text-right tabular-nums">{image?.byClass[c.key] ?? 0}</td>
-              <td className="py-1 text-right tabular-nums">{readCount(c.key)?.count ?? 0}</td>
-              <td className="py-1 text-right tabular-nums">{formatPct(readCount(c.key)?.pctOfCells ?? null)}</td>
+              <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{image?.byClass[c.key] ?? 0}</td>
+              <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{readCount(c.key)?.count ?? 0}</td>
+              <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{formatPct(readCount(c.key)?.pctOfCells ?? null)}</td>
             </tr>
           ))}
           <tr className="border-t-2 border-line font-medium">
             <th scope="row" className="py-1 text-left">
               Sperm cells
             </th>
-            <td className="py-1 text-right tabular-nums">{image?.cellsCounted ?? 0}</td>
-            <td className="py-1 text-right tabular-nums">{read.cellsCounted}</td>
-            <td className="py-1 text-right tabular-nums">{read.cellsCounted > 0 ? '100.0 %' : '—'}</td>
+            <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{image?.cellsCounted ?? 0}</td>
+            <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{read.cellsCounted}</td>
+            <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{read.cellsCounted > 0 ? '100.0 %' : '—'}</td>
           </tr>
           {other.map((c) => (
             <tr key={c.key} className="border-t border-line text-ink-soft">
@@ -107,8 +107,8 @@ export const TallyPanel = memo(function TallyPanel({
                   {c.name} <span className="text-ink-faint">(not sperm)</span>
                 </span>
               </th>
-              <td className="py-1 text-right tabular-nums">{image?.byClass[c.key] ?? 0}</td>
-              <td className="py-1 text-right tabular-nums">{readCount(c.key)?.count ?? 0}</td>
+              <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{image?.byClass[c.key] ?? 0}</td>
+              <td className="whitespace-nowrap py-1 pl-2 text-right tabular-nums">{readCount(c.key)?.count ?? 0}</td>
               <td className="py-1 text-right">—</td>
             </tr>
           ))}
