@@ -28,6 +28,10 @@ export interface FieldCanvasControl {
   panKey(key: string, shift: boolean): boolean;
   panBy(dx: number, dy: number): void;
   setSpacePan(on: boolean): void;
+  /** Places a mark at the image point under the centre cross; false if that point is off the image. */
+  placeAtCentre(): boolean;
+  /** Whether keyboard focus is on the canvas itself. */
+  hasFocus(): boolean;
   getStage(): Konva.Stage | null;
 }
 
@@ -215,6 +219,14 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
         spaceRef.current = on;
         setCursor(on ? 'grab' : 'crosshair');
       },
+      placeAtCentre: () => {
+        const { image: img, readOnly: ro } = live.current;
+        const ip = screenToImage(vpRef.current, centre());
+        if (ro || !isInsideImage(ip.x, ip.y, img.width, img.height)) return false;
+        live.current.onPlace(ip.x, ip.y);
+        return true;
+      },
+      hasFocus: () => containerRef.current !== null && containerRef.current === document.activeElement,
       getStage: () => stageRef.current,
     };
     return () => {
@@ -395,7 +407,7 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
       ref={containerRef}
       tabIndex={0}
       aria-describedby="scoring-canvas-help"
-      className="relative h-full w-full touch-none select-none overflow-hidden bg-[#2a2630] outline-none focus-visible:ring-2 focus-visible:ring-brand"
+      className="group relative h-full w-full touch-none select-none overflow-hidden bg-[#2a2630] outline-none focus-visible:ring-2 focus-visible:ring-brand"
       style={{ cursor }}
       onPointerDown={onPointerDown}
       onPointerMove={onPointerMove}
@@ -435,6 +447,13 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
             )}
           </Layer>
         </Stage>
+      )}
+      {!readOnly && (
+        // The centre cross, shown while the canvas has keyboard focus: Enter marks the cell under it.
+        <div aria-hidden data-testid="centre-cross" className="pointer-events-none absolute left-1/2 top-1/2 hidden h-7 w-7 -translate-x-1/2 -translate-y-1/2 group-focus-visible:block">
+          <span className="absolute left-1/2 top-0 h-full w-0.5 -translate-x-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
+          <span className="absolute left-0 top-1/2 h-0.5 w-full -translate-y-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
+        </div>
       )}
       {!levels && !loadError && (
         <p className="pointer-events-none absolute inset-0 flex items-center justify-center text-sm text-white/80">Loading image…</p>

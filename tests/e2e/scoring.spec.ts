@@ -144,6 +144,36 @@ test('scores cells by key and by click, with a running tally and % normal', asyn
   expect(body.marks).toHaveLength(4);
 });
 
+test('marks cells without a mouse: Tab to the image, pan a cell under the centre cross, Enter', async ({ page }) => {
+  const readId = await newRead(page);
+  const { defectA } = await classesOf(page, readId);
+  await openRead(page, readId);
+  await page.keyboard.press(defectA.hotkey!);
+  const canvas = page.getByTestId('field-canvas');
+  for (let i = 0; i < 30 && !(await canvas.evaluate((el) => el === document.activeElement)); i++) await page.keyboard.press('Tab');
+  await expect(canvas).toBeFocused();
+  await expect(page.getByTestId('centre-cross')).toBeVisible();
+
+  // The fitted image is centred, so the cross sits on the middle of the field.
+  await page.keyboard.press('Enter');
+  await expect(cells(page)).toHaveAttribute('aria-valuenow', '1');
+  // Arrow right brings the image's right-hand part under the cross; Enter marks that spot.
+  await page.keyboard.press('ArrowRight');
+  await page.keyboard.press('ArrowRight');
+  await page.keyboard.press('Enter');
+  await expect(cells(page)).toHaveAttribute('aria-valuenow', '2');
+  await expect(page.getByTestId('announcer')).toHaveText(`Marked cell as ${defectA.name} (2 of 200)`);
+
+  await expect(status(page)).toHaveText('All changes saved');
+  const marks = (await serverRead(page, readId)).marks.sort((a, b) => a.x - b.x);
+  expect(marks).toHaveLength(2);
+  expect(marks.every((m) => m.classKey === defectA.key)).toBe(true);
+  expect(Math.abs(marks[0]!.x - W / 2)).toBeLessThan(2);
+  expect(Math.abs(marks[0]!.y - H / 2)).toBeLessThan(2);
+  expect(marks[1]!.x - marks[0]!.x).toBeGreaterThan(20);
+  expect(Math.abs(marks[1]!.y - marks[0]!.y)).toBeLessThan(2);
+});
+
 test('a reload mid-read restores every mark, also changes that had not reached the server', async ({ page }) => {
   const readId = await newRead(page);
   const { defectA } = await classesOf(page, readId);
