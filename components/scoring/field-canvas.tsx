@@ -28,8 +28,11 @@ export interface FieldCanvasControl {
   panKey(key: string, shift: boolean): boolean;
   panBy(dx: number, dy: number): void;
   setSpacePan(on: boolean): void;
-  /** Places a mark at the image point under the centre cross; false if that point is off the image. */
-  placeAtCentre(): boolean;
+  /**
+   * Enter on the canvas, as a click at the centre cross: selects the mark under the cross,
+   * or places a new one there. 'off-image' when the cross is not over the image.
+   */
+  pressAtCentre(): 'selected' | 'placed' | 'off-image';
   /** Whether keyboard focus is on the canvas itself. */
   hasFocus(): boolean;
   getStage(): Konva.Stage | null;
@@ -219,12 +222,18 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
         spaceRef.current = on;
         setCursor(on ? 'grab' : 'crosshair');
       },
-      placeAtCentre: () => {
-        const { image: img, readOnly: ro } = live.current;
+      pressAtCentre: () => {
+        const { image: img, readOnly: ro, marks: mks, marksVisible: visible } = live.current;
         const ip = screenToImage(vpRef.current, centre());
-        if (ro || !isInsideImage(ip.x, ip.y, img.width, img.height)) return false;
-        live.current.onPlace(ip.x, ip.y);
-        return true;
+        const hit = visible ? hitTest(mks, ip, hitRadiusRef.current) : null;
+        if (hit) {
+          live.current.onSelect(hit.id);
+          return 'selected';
+        }
+        if (!isInsideImage(ip.x, ip.y, img.width, img.height)) return 'off-image';
+        if (ro) live.current.onSelect(null);
+        else live.current.onPlace(ip.x, ip.y);
+        return 'placed';
       },
       hasFocus: () => containerRef.current !== null && containerRef.current === document.activeElement,
       getStage: () => stageRef.current,
@@ -250,6 +259,8 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
 
   const radius = markerRadiusForScale(scale);
   const hitRadius = radius * 1.4;
+  const hitRadiusRef = useRef(hitRadius);
+  hitRadiusRef.current = hitRadius;
 
   // Pointer gestures: tap/click places or selects, drag pans or moves a mark, two fingers pinch.
   const gesture = useRef<
@@ -448,13 +459,11 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
           </Layer>
         </Stage>
       )}
-      {!readOnly && (
-        // The centre cross, shown while the canvas has keyboard focus: Enter marks the cell under it.
-        <div aria-hidden data-testid="centre-cross" className="pointer-events-none absolute left-1/2 top-1/2 hidden h-7 w-7 -translate-x-1/2 -translate-y-1/2 group-focus-visible:block">
-          <span className="absolute left-1/2 top-0 h-full w-0.5 -translate-x-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
-          <span className="absolute left-0 top-1/2 h-0.5 w-full -translate-y-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
-        </div>
-      )}
+      {/* The centre cross, shown while the canvas has keyboard focus: Enter acts as a click under it. */}
+      <div aria-hidden data-testid="centre-cross" className="pointer-events-none absolute left-1/2 top-1/2 hidden h-7 w-7 -translate-x-1/2 -translate-y-1/2 group-focus-visible:block">
+        <span className="absolute left-1/2 top-0 h-full w-0.5 -translate-x-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
+        <span className="absolute left-0 top-1/2 h-0.5 w-full -translate-y-1/2 bg-white/90 shadow-[0_0_0_1px_rgba(0,0,0,0.6)]" />
+      </div>
       {!levels && !loadError && (
         <p className="pointer-events-none absolute inset-0 flex items-center justify-center text-sm text-white/80">Loading image…</p>
       )}

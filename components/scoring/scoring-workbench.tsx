@@ -379,9 +379,9 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
         return;
       case 'Enter':
         // Only on the canvas itself: Enter on a button or link keeps its usual meaning.
-        if (control?.hasFocus() && canEdit) {
+        if (control?.hasFocus()) {
           e.preventDefault();
-          if (!control.placeAtCentre()) announce('The centre cross is off the image: pan the image under it first.');
+          if (control.pressAtCentre() === 'off-image') announce('The centre cross is off the image: pan the image under it first.');
         }
         return;
       case 'f':
@@ -674,7 +674,7 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
               <li>Press a class key (digits; letters for non-sperm cells), then click a cell to mark it.</li>
               <li>“Keep this class” on: every click uses the chosen class. Off: the new mark is selected and the next key sets its class.</li>
               <li>Click a mark to select it; a class key then changes its class. Drag a mark to move it.</li>
-              <li>Without a mouse: Tab to the image, pan a cell under the centre cross with the arrow keys, and press Enter to mark it.</li>
+              <li>Without a mouse: Tab to the image, pan a cell under the centre cross with the arrow keys, and press Enter to mark it (or to select the mark already there).</li>
               <li>Delete or Backspace removes the selected mark; Escape deselects.</li>
               <li>t opens the extra-defect checklist of the selected mark.</li>
               <li>Ctrl+Z undo; Ctrl+Shift+Z or Ctrl+Y redo (⌘ on a Mac).</li>

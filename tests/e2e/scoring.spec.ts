@@ -144,7 +144,7 @@ test('scores cells by key and by click, with a running tally and % normal', asyn
   expect(body.marks).toHaveLength(4);
 });
 
-test('marks cells without a mouse: Tab to the image, pan a cell under the centre cross, Enter', async ({ page }) => {
+test('marks and selects cells without a mouse: Tab to the image, pan under the centre cross, Enter', async ({ page }) => {
   const readId = await newRead(page);
   const { defectA } = await classesOf(page, readId);
   await openRead(page, readId);
@@ -163,6 +163,12 @@ test('marks cells without a mouse: Tab to the image, pan a cell under the centre
   await page.keyboard.press('Enter');
   await expect(cells(page)).toHaveAttribute('aria-valuenow', '2');
   await expect(page.getByTestId('announcer')).toHaveText(`Marked cell as ${defectA.name} (2 of 200)`);
+  // Back over the first mark, Enter selects it instead of placing a second one there.
+  await page.keyboard.press('ArrowLeft');
+  await page.keyboard.press('ArrowLeft');
+  await page.keyboard.press('Enter');
+  await expect(page.getByRole('heading', { name: `Selected mark: ${defectA.name}` })).toBeVisible();
+  await expect(cells(page)).toHaveAttribute('aria-valuenow', '2');
 
   await expect(status(page)).toHaveText('All changes saved');
   const marks = (await serverRead(page, readId)).marks.sort((a, b) => a.x - b.x);
