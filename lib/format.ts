@@ -2,10 +2,15 @@
 export const fmt = (v: number | null | undefined, digits = 1) =>
   v == null || Number.isNaN(v) ? '—' : v.toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
 
-export const fmtDateTime = (iso: string) =>
-  new Date(iso).toLocaleString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZone: 'UTC' }) + ' UTC';
+/** An instant on the lab's wall clock, with the zone's short name (e.g. "10 Jun 2026, 10:25 BST"). */
+export const fmtDateTime = (iso: string | Date, timeZone = 'UTC') =>
+  new Date(iso).toLocaleString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZone, timeZoneName: 'short' });
 
-export const fmtDate = (iso: string) => new Date(iso.length === 10 ? `${iso}T00:00:00Z` : iso).toLocaleDateString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', timeZone: 'UTC' });
+/** A calendar date ('YYYY-MM-DD', as is), or the lab's day of an instant. */
+export const fmtDate = (iso: string, timeZone = 'UTC') =>
+  iso.length === 10
+    ? new Date(`${iso}T00:00:00Z`).toLocaleDateString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', timeZone: 'UTC' })
+    : new Date(iso).toLocaleDateString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', timeZone });
 
 /** 10^9 with two decimals, the unit written out. */
 export const billions = (v: number | null | undefined) => (v == null ? '—' : `${fmt(v, 2)} × 10⁹`);

@@ -6,6 +6,8 @@ import { useForm } from 'react-hook-form';
 import { describedBy, Field } from '@/components/ui/field';
 import { fmt } from '@/lib/format';
 import { useApiForm } from '@/lib/hooks/use-api-form';
+import { useLabTimeZone } from '@/components/time/lab-clock';
+import { dateToWallTime, wallTimeToDate } from '@/lib/time/lab-time';
 import { semenWarnings } from '@/lib/semen/arithmetic';
 import { tryConcentrationFromChamber } from '@/lib/semen/chamber';
 import { collectionSchema, OPTICS, PREPARATIONS, type CollectionInput, type CollectionValues } from '@/lib/validations/collection';
@@ -14,22 +16,23 @@ type Props = { stallions: { id: number; name: string }[]; collectionId?: number;
 
 const num = (v: unknown) => (v === '' || v == null || Number.isNaN(Number(v)) ? null : Number(v));
 
-/** A datetime-local value (the browser's wall clock) for an instant. */
-function localInput(d = new Date()) {
-  return new Date(d.getTime() - d.getTimezoneOffset() * 6e4).toISOString().slice(0, 16);
-}
-
 export function CollectionForm({ stallions, collectionId, initial }: Props) {
   const router = useRouter();
+  const timeZone = useLabTimeZone();
+  const checkValues = zodResolver(collectionSchema);
   const form = useForm<CollectionInput, unknown, CollectionValues>({
-    resolver: zodResolver(collectionSchema),
+    // The date and time are typed on the lab's clock, whatever the browser's own zone.
+    resolver: (values, context, options) => {
+      const at = typeof values.collectedAt === 'string' ? wallTimeToDate(values.collectedAt, timeZone) : null;
+      return checkValues(at ? { ...values, collectedAt: at.toISOString() } : values, context, options);
+    },
     defaultValues: {
       concentrationMethod: 'entered',
       preparation: 'eosin_nigrosin',
       optics: 'bright_field',
       magnification: 1000,
       ...(initial as object),
-      collectedAt: localInput(typeof initial?.collectedAt === 'string' ? new Date(initial.collectedAt) : undefined),
+      collectedAt: dateToWallTime(typeof initial?.collectedAt === 'string' ? initial.collectedAt : new Date(), timeZone),
     },
   });
   const { send, formError } = useApiForm(form);
@@ -70,7 +73,7 @@ export function CollectionForm({ stallions, collectionId, initial }: Props) {
             {stallions.map((s) => <option key={s.id} value={s.id}>{s.name}</option>)}
           </select>
         </Field>
-        <Field id="collectedAt" label="Collected at (date and time)" error={err('collectedAt')} hint="Your local time; stored in UTC.">
+        <Field id="collectedAt" label="Collected at (date and time)" error={err('collectedAt')} hint={`On the lab’s clock (${timeZone.replaceAll('_', ' ')}).`}>
           <input id="collectedAt" type="datetime-local" className="input" {...describedBy('collectedAt', err('collectedAt'))} {...register('collectedAt')} />
         </Field>
         <Field id="collectedBy" label="Collected by" error={err('collectedBy')}>

@@ -3,6 +3,8 @@
 import dynamic from 'next/dynamic';
 import Link from 'next/link';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useLabTimeZone } from '@/components/time/lab-clock';
+import { fmtDateTime } from '@/lib/format';
 import { classForHotkey, type MarkClass } from '@/lib/class-sets/schema';
 import { syncStatusText, useMarkSync } from '@/lib/hooks/use-mark-sync';
 import { applyOp, canRedo, canUndo, createHistory, forgetMarks, push, redo, undo, type History, type MarkOp } from '@/lib/scoring/history';
@@ -48,12 +50,8 @@ function isTextEntry(el: EventTarget | null): boolean {
   return false;
 }
 
-function formatDate(iso: string): string {
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? iso : d.toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' });
-}
-
 export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
+  const timeZone = useLabTimeZone();
   const readId = String(initial.read.id);
   const images = initial.images;
   const [read, setRead] = useState<ReadDetail>(initial.read);
@@ -470,7 +468,7 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
             {KIND_LABEL[read.kind]} — {read.stallion}
           </h1>
           <p className="text-sm text-ink-soft">
-            <Link href={`/collections/${read.collectionId}`}>Collection of {formatDate(read.collectedAt)}</Link> · target {read.targetCells} cells
+            <Link href={`/collections/${read.collectionId}`}>Collection of {fmtDateTime(read.collectedAt, timeZone)}</Link> · target {read.targetCells} cells
           </p>
         </div>
         <p role="status" aria-live="polite" className={`text-sm font-medium ${statusTone}`} data-testid="sync-status">

@@ -5,7 +5,9 @@ import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { ApiError, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
+import { getLabSettings } from '@/db/queries/settings';
 import { concentrationFromChamber } from '@/lib/semen/chamber';
+import { labDay, wallTimeToDate } from '@/lib/time/lab-time';
 import type { CollectionValues } from '@/lib/validations/collection';
 import type { Page } from '@/lib/validations/fields';
 
@@ -101,10 +103,13 @@ const SORT_COLUMNS = {
 export async function listCollections(q: {
   page: number; pageSize: number; sort: keyof typeof SORT_COLUMNS; dir: 'asc' | 'desc'; q?: string; stallionId?: number; from?: string; to?: string;
 }): Promise<Page<Collection>> {
+  const { timeZone } = await getLabSettings();
+  // From and to are the lab's calendar days (noon is on that day whatever the clock changes).
+  const dayOf = (date: string) => labDay(wallTimeToDate(`${date}T12:00`, timeZone) ?? new Date(`${date}T12:00:00Z`), timeZone);
   const filter = (b: Knex.QueryBuilder) => {
     if (q.stallionId) b.where('k.stallion_id', q.stallionId);
-    if (q.from) b.where('k.collected_at', '>=', new Date(`${q.from}T00:00:00Z`));
-    if (q.to) b.where('k.collected_at', '<', new Date(new Date(`${q.to}T00:00:00Z`).getTime() + DAY_MS));
+    if (q.from) b.where('k.collected_at', '>=', dayOf(q.from).start);
+    if (q.to) b.where('k.collected_at', '<', dayOf(q.to).end);
     if (q.q) whereContains(b, ['s.name', 'k.remarks', 'k.collected_by'], q.q);
     return b;
   };
@@ -160,13 +165,14 @@ function toRow(v: CollectionValues) {
   };
 }
 
-/** Renumbers a stallion's collections on one UTC day (1st, 2nd … ejaculate of that day). */
+/** Renumbers a stallion's collections on one of the lab's days (1st, 2nd … ejaculate of that day). */
 async function renumberDay(trx: Knex.Transaction, stallionId: number, at: Date) {
-  const start = new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth(), at.getUTCDate()));
+  const { timeZone } = await getLabSettings();
+  const { start, end } = labDay(at, timeZone);
   const ids: number[] = await trx('collections')
     .where('stallion_id', stallionId)
     .where('collected_at', '>=', start)
-    .where('collected_at', '<', new Date(start.getTime() + DAY_MS))
+    .where('collected_at', '<', end)
     .orderBy('collected_at')
     .orderBy('id')
     .pluck('id');

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { BREEDING_SOUNDNESS_PMMN_THRESHOLD_BILLION, DOSE_DEFAULTS, EJACULATE_PAIR_GAP_DEFAULT } from '@/lib/semen/arithmetic';
 import { DEFAULT_TARGET_CELLS } from '@/lib/morphology/tally';
+import { DEFAULT_TIME_ZONE, isTimeZone } from '@/lib/time/lab-time';
 import { EPIDIDYMAL_TRANSIT_DAYS_DEFAULT, SPERMATOGENESIS_DAYS_DEFAULT } from '@/lib/windows/window';
 
 const num = (label: string, min: number, max: number) =>
@@ -18,6 +19,7 @@ export const labSettingsSchema = z.object({
   targetCells: int('Target cell count', 50, 1000),
   spermatogenesisDays: int('Spermatogenesis', 30, 90),
   epididymalTransitDays: int('Epididymal transit', 0, 30),
+  timeZone: z.string().trim().refine(isTimeZone, 'Unknown time zone — choose one from the list (e.g. Europe/London, America/New_York).'),
 });
 export type LabSettings = z.infer<typeof labSettingsSchema>;
 
@@ -31,9 +33,11 @@ export const LAB_SETTINGS_DEFAULTS: LabSettings = {
   targetCells: DEFAULT_TARGET_CELLS,
   spermatogenesisDays: SPERMATOGENESIS_DAYS_DEFAULT,
   epididymalTransitDays: EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
+  timeZone: DEFAULT_TIME_ZONE,
 };
 
-export const LAB_SETTINGS_FIELDS: { key: keyof LabSettings; label: string; unit: string; source: string }[] = [
+/** The numeric settings, each with its unit and the source of its default (the time zone has its own field). */
+export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone'>; label: string; unit: string; source: string }[] = [
   { key: 'freshDoseBillion', label: 'Fresh insemination dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.fresh.source },
   { key: 'cooledDoseBillion', label: 'Cooled-shipped dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.cooled.source },
   { key: 'frozenDoseBillion', label: 'Frozen dose', unit: '10^9 total sperm', source: DOSE_DEFAULTS.frozen.source },

@@ -1,5 +1,6 @@
 import Link from 'next/link';
 import { collectionsAwaitingRead, getLabOverview } from '@/db/queries/dashboard';
+import { getLabSettings } from '@/db/queries/settings';
 import { fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
@@ -8,7 +9,7 @@ export const metadata = { title: 'Dashboard' };
 
 export default async function DashboardPage() {
   const user = await requirePageUser(STAFF_ROLES);
-  const [o, waiting] = await Promise.all([getLabOverview(), collectionsAwaitingRead()]);
+  const [o, waiting, { timeZone }] = await Promise.all([getLabOverview(), collectionsAwaitingRead(), getLabSettings()]);
   const tiles = [
     { label: 'Stallions on file', value: o.stallions, href: '/stallions' },
     { label: 'Collections in the last 30 days', value: o.collectionsLast30Days, href: '/collections' },
@@ -38,7 +39,7 @@ export default async function DashboardPage() {
           <ul className="divide-y divide-line text-sm">
             {waiting.map((c) => (
               <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
-                <Link href={`/collections/${c.id}`}>{c.stallion} · {fmtDateTime(c.collectedAt)}</Link>
+                <Link href={`/collections/${c.id}`}>{c.stallion} · {fmtDateTime(c.collectedAt, timeZone)}</Link>
                 <span className="text-ink-soft">{c.images} image(s) · {c.started ? 'read in progress' : 'not started'}</span>
               </li>
             ))}

@@ -39,7 +39,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
       <div className="flex flex-wrap items-start justify-between gap-3">
         <div>
           <p className="text-sm text-ink-soft"><Link href={`/stallions/${c.stallionId}`}>{c.stallion}</Link></p>
-          <h1>Collection of {fmtDateTime(c.collectedAt)}</h1>
+          <h1>Collection of {fmtDateTime(c.collectedAt, settings.timeZone)}</h1>
           <p className="text-sm text-ink-soft">
             Ejaculate {c.numberThatDay} of that day ·{' '}
             {c.daysSincePrevious == null ? 'first collection on record' : `${fmt(c.daysSincePrevious)} days since the previous collection`} · recorded by {c.recordedBy}

@@ -1,14 +1,16 @@
 'use client';
 
 import { createColumnHelper } from '@tanstack/react-table';
-import { useState } from 'react';
+import { useMemo, useState } from 'react';
+import { useLabTimeZone } from '@/components/time/lab-clock';
 import { DataTable } from '@/components/ui/data-table';
 import type { Collection } from '@/db/queries/collections';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
 
 const c = createColumnHelper<Collection>();
-const columns = [
-  c.accessor('collectedAt', { id: 'collectedAt', header: 'Collected', cell: (i) => `${fmtDateTime(i.getValue())}${i.row.original.numberThatDay > 1 ? ` (#${i.row.original.numberThatDay})` : ''}` }),
+/** The columns, with times on the lab's clock. */
+const columnsFor = (timeZone: string) => [
+  c.accessor('collectedAt', { id: 'collectedAt', header: 'Collected', cell: (i) => `${fmtDateTime(i.getValue(), timeZone)}${i.row.original.numberThatDay > 1 ? ` (#${i.row.original.numberThatDay})` : ''}` }),
   c.accessor('stallion', { id: 'stallion', header: 'Stallion' }),
   c.accessor('volumeMl', { id: 'volumeMl', header: 'Volume (mL)', cell: (i) => fmt(i.getValue()) }),
   c.accessor('concentrationMillionPerMl', { id: 'concentration', header: 'Conc. (10⁶/mL)', cell: (i) => fmt(i.getValue(), 0) }),
@@ -31,6 +33,8 @@ const columns = [
 ];
 
 export function CollectionsTable({ stallions, stallionId }: { stallions?: { id: number; name: string }[]; stallionId?: number }) {
+  const timeZone = useLabTimeZone();
+  const columns = useMemo(() => columnsFor(timeZone), [timeZone]);
   const [stallion, setStallion] = useState<string>(stallionId ? String(stallionId) : '');
   const [from, setFrom] = useState('');
   const [to, setTo] = useState('');

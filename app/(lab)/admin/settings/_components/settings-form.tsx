@@ -8,7 +8,7 @@ import { describedBy, Field } from '@/components/ui/field';
 import { useApiForm } from '@/lib/hooks/use-api-form';
 import { LAB_SETTINGS_FIELDS, labSettingsSchema, type LabSettings } from '@/lib/settings/lab-settings';
 
-export function SettingsForm({ initial, defaults }: { initial: LabSettings; defaults: LabSettings }) {
+export function SettingsForm({ initial, defaults, timeZones }: { initial: LabSettings; defaults: LabSettings; timeZones: string[] }) {
   const form = useForm<z.input<typeof labSettingsSchema>, unknown, LabSettings>({ resolver: zodResolver(labSettingsSchema), defaultValues: initial });
   const { send, formError } = useApiForm(form);
   const [saved, setSaved] = useState(false);
@@ -29,6 +29,20 @@ export function SettingsForm({ initial, defaults }: { initial: LabSettings; defa
           </Field>
         );
       })}
+      <Field
+        id="timeZone"
+        label="Lab time zone"
+        error={e.timeZone?.message as string | undefined}
+        hint={`Collection times are entered and shown on this clock, and “ejaculate of the day” counts this zone’s days. Default ${defaults.timeZone}.`}
+      >
+        <select id="timeZone" className="input max-w-72" {...describedBy('timeZone', e.timeZone?.message as string | undefined)} {...form.register('timeZone')}>
+          {timeZones.map((z) => (
+            <option key={z} value={z}>
+              {z.replaceAll('_', ' ')}
+            </option>
+          ))}
+        </select>
+      </Field>
       {formError && <p role="alert" className="rounded-md bg-danger-bg px-3 py-2 text-sm text-danger">{formError}</p>}
       {saved && <p role="status" className="rounded-md bg-ok-bg px-3 py-2 text-sm text-ok">Settings saved.</p>}
       <button type="submit" className="btn" disabled={form.formState.isSubmitting}>Save settings</button>
