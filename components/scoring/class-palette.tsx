@@ -58,3 +58,36 @@ export const ClassPalette = memo(function ClassPalette({
     </section>
   );
 });
+
+/**
+ * The same choice as a strip above the canvas, for narrow screens (a tablet upright), where
+ * the palette beside the canvas moves below it and out of reach while scoring.
+ */
+export const ClassStrip = memo(function ClassStrip({
+  classes,
+  currentKey,
+  onChoose,
+}: {
+  classes: readonly MarkClass[];
+  currentKey: string;
+  onChoose(key: string): void;
+}) {
+  return (
+    <div role="group" aria-label="Class for new marks (strip)" className="flex gap-1 overflow-x-auto pb-1 lg:hidden">
+      {classes.map((c) => (
+        <button
+          key={c.key}
+          type="button"
+          aria-pressed={c.key === currentKey}
+          onClick={() => onChoose(c.key)}
+          className="flex shrink-0 items-center gap-1.5 rounded-md border border-line bg-paper-raised px-2 py-1.5 text-xs aria-pressed:border-brand aria-pressed:bg-brand-light"
+        >
+          <span className="rounded bg-[#2a2630] p-0.5">
+            <MarkerSwatch shape={c.shape} colour={c.colour} size={14} />
+          </span>
+          <span className="max-w-40 truncate">{c.name}</span>
+        </button>
+      ))}
+    </div>
+  );
+});

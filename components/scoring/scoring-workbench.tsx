@@ -12,9 +12,9 @@ import { mergeServerMarks, opToChange, type ChangeQueue } from '@/lib/scoring/qu
 import { newId, type ScoringMark } from '@/lib/scoring/types';
 import { ZOOM_STEP } from '@/lib/scoring/viewport';
 import type { FieldCanvasControl } from './field-canvas';
-import { ClassPalette } from './class-palette';
+import { ClassPalette, ClassStrip } from './class-palette';
 import { MarkerSwatch } from './marker-swatch';
-import { morphologyClasses, tallyScoringMarks } from './tally';
+import { formatPct, morphologyClasses, tallyScoringMarks } from './tally';
 import { TallyPanel } from './tally-panel';
 import type { ReadDetail, ReadPayload, ScoringWorkbenchProps } from './types';
 
@@ -552,6 +552,13 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
               Next ›
             </button>
           </div>
+
+          {canEdit && <ClassStrip classes={classList} currentKey={currentKey} onChoose={onChoose} />}
+          {/* The tally panel sits below the canvas on narrow screens: its headline stays in view here. */}
+          <p className="text-sm tabular-nums lg:hidden" data-testid="tally-headline">
+            Cells {readTally.cellsCounted}/{readTally.target} · {formatPct(readTally.pctNormal)} normal
+            {readTally.targetReached ? ' · target reached' : ''}
+          </p>
 
           <section
             role="region"

@@ -180,6 +180,29 @@ test('marks and selects cells without a mouse: Tab to the image, pan under the c
   expect(Math.abs(marks[1]!.y - marks[0]!.y)).toBeLessThan(2);
 });
 
+test('on an upright tablet the classes sit in a strip above the canvas', async ({ page }) => {
+  await page.setViewportSize({ width: 820, height: 1180 });
+  const readId = await newRead(page);
+  const { defectA } = await classesOf(page, readId);
+  await openRead(page, readId);
+  const strip = page.getByRole('group', { name: 'Class for new marks (strip)' });
+  await expect(strip).toBeInViewport();
+  await strip.getByRole('button', { name: defectA.name }).click();
+  await expect(strip.getByRole('button', { name: defectA.name })).toHaveAttribute('aria-pressed', 'true');
+  await expect(page.getByTestId('field-canvas')).toBeInViewport({ ratio: 0.9 });
+  await clickImage(page, spot(0).x, spot(0).y);
+  await expect(cells(page)).toHaveAttribute('aria-valuenow', '1');
+  // The tally's headline stays in view above the canvas (the panel itself is further down).
+  await expect(page.getByTestId('tally-headline')).toHaveText('Cells 1/200 · 0.0 % normal');
+  await expect(page.getByTestId('tally-headline')).toBeInViewport();
+  await expect(status(page)).toHaveText('All changes saved');
+  const marks = (await serverRead(page, readId)).marks;
+  expect(marks.map((m) => m.classKey)).toEqual([defectA.key]);
+  // On a laptop the palette beside the canvas is enough: no strip.
+  await page.setViewportSize({ width: 1366, height: 820 });
+  await expect(strip).toBeHidden();
+});
+
 test('a reload mid-read restores every mark, also changes that had not reached the server', async ({ page }) => {
   const readId = await newRead(page);
   const { defectA } = await classesOf(page, readId);
