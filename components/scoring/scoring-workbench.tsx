@@ -265,23 +265,16 @@ export function ScoringWorkbench({ initial }: ScoringWorkbenchProps) {
     perform({ type: 'update', id, before: { tags: m.tags }, after: { tags } });
   };
 
-  const doUndo = () => {
+  const travel = (way: typeof undo | typeof redo, done: string) => {
     if (!canEdit) return;
-    const step = undo(historyRef.current);
+    const step = way(historyRef.current);
     if (!step) return;
     setHistory(step.history);
     apply(step.op);
-    announce(`Undone (${spermCount(marksRef.current)} of ${read.targetCells})`);
+    announce(`${done} (${spermCount(marksRef.current)} of ${read.targetCells})`);
   };
-
-  const doRedo = () => {
-    if (!canEdit) return;
-    const step = redo(historyRef.current);
-    if (!step) return;
-    setHistory(step.history);
-    apply(step.op);
-    announce(`Redone (${spermCount(marksRef.current)} of ${read.targetCells})`);
-  };
+  const doUndo = () => travel(undo, 'Undone');
+  const doRedo = () => travel(redo, 'Redone');
 
   const goToImage = (i: number) => {
     if (i < 0 || i >= images.length) return;

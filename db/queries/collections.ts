@@ -5,7 +5,7 @@ import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { ApiError, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
-import { getLabSettings } from '@/db/queries/settings';
+import { getLabSettings, labTimeZoneFor } from '@/db/queries/settings';
 import { concentrationFromChamber } from '@/lib/semen/chamber';
 import { labDay, wallTimeToDate } from '@/lib/time/lab-time';
 import type { CollectionValues } from '@/lib/validations/collection';
@@ -103,7 +103,7 @@ const SORT_COLUMNS = {
 export async function listCollections(q: {
   page: number; pageSize: number; sort: keyof typeof SORT_COLUMNS; dir: 'asc' | 'desc'; q?: string; stallionId?: number; from?: string; to?: string;
 }): Promise<Page<Collection>> {
-  const { timeZone } = await getLabSettings();
+  const timeZone = q.from || q.to ? (await getLabSettings()).timeZone : 'UTC';
   // From and to are the lab's calendar days (noon is on that day whatever the clock changes).
   const dayOf = (date: string) => labDay(wallTimeToDate(`${date}T12:00`, timeZone) ?? new Date(`${date}T12:00:00Z`), timeZone);
   const filter = (b: Knex.QueryBuilder) => {
@@ -166,8 +166,7 @@ function toRow(v: CollectionValues) {
 }
 
 /** Renumbers a stallion's collections on one of the lab's days (1st, 2nd … ejaculate of that day). */
-async function renumberDay(trx: Knex.Transaction, stallionId: number, at: Date) {
-  const { timeZone } = await getLabSettings();
+async function renumberDay(trx: Knex.Transaction, stallionId: number, at: Date, timeZone: string) {
   const { start, end } = labDay(at, timeZone);
   const ids: number[] = await trx('collections')
     .where('stallion_id', stallionId)
@@ -187,10 +186,12 @@ async function requireStallion(trx: Knex.Transaction, stallionId: number) {
 
 export async function createCollection(actor: CurrentUser, v: CollectionValues): Promise<Collection> {
   const id = await db.transaction(async (trx) => {
+    // The zone first: a zone change takes the same lock before it touches any collection.
+    const timeZone = await labTimeZoneFor(trx);
     await requireStallion(trx, v.stallionId);
     const row = { ...toRow(v), recorded_by: actor.id };
     const [id] = await trx('collections').insert(row);
-    await renumberDay(trx, v.stallionId, v.collectedAt);
+    await renumberDay(trx, v.stallionId, v.collectedAt, timeZone);
     await writeAudit(trx, { userId: actor.id, action: 'create', entity: 'collection', entityId: id, after: row });
     return id;
   });
@@ -199,13 +200,14 @@ export async function createCollection(actor: CurrentUser, v: CollectionValues):
 
 export async function updateCollection(actor: CurrentUser, id: number, v: CollectionValues): Promise<Collection> {
   await db.transaction(async (trx) => {
+    const timeZone = await labTimeZoneFor(trx); // before the row lock, as in createCollection
     const before = await trx('collections').where({ id }).forUpdate().first();
     if (!before) throw notFound('The collection');
     await requireStallion(trx, v.stallionId);
     const row = toRow(v);
     await trx('collections').where({ id }).update({ ...row, updated_at: trx.fn.now(3) });
-    await renumberDay(trx, before.stallion_id, new Date(before.collected_at));
-    await renumberDay(trx, v.stallionId, v.collectedAt);
+    await renumberDay(trx, before.stallion_id, new Date(before.collected_at), timeZone);
+    await renumberDay(trx, v.stallionId, v.collectedAt, timeZone);
     const { created_at, updated_at, id: _id, ...beforeRow } = before;
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'collection', entityId: id, before: beforeRow, after: row });
   });

@@ -172,14 +172,13 @@ async function applyChanges(trx: Knex.Transaction, user: CurrentUser, readId: nu
   const classes = new Map(json<ClassSet>(read.class_set_snapshot).classes.map((c) => [c.key, c]));
 
   const ids = [...new Set(changes.map((c) => c.markId))];
-  const rows = new Map<string, Record<string, any>>();
   const done = new Map<string, number>();
-  const lockedIds = new Set<string>();
   const existing = await trx('marks').whereIn('id', ids).select('id');
-  if (existing.length) {
-    const locked = await trx('marks').whereIn('id', existing.map((m) => m.id)).forUpdate();
-    for (const m of locked) rows.set(m.id, m);
-    for (const m of locked) lockedIds.add(m.id);
+  const locked = existing.length ? await trx('marks').whereIn('id', existing.map((m) => m.id)).forUpdate() : [];
+  // The marks as they are now, updated as the batch applies; the locked ones existed before it.
+  const rows = new Map<string, Record<string, any>>(locked.map((m) => [m.id, m]));
+  const lockedIds = new Set(rows.keys());
+  if (locked.length) {
     for (const c of changes) {
       const r = rows.get(c.markId);
       if (r && r.last_op_id === c.opId) done.set(c.opId, r.version);

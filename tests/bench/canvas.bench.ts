@@ -22,27 +22,12 @@ import { fileURLToPath } from 'node:url';
 import { chromium } from '@playwright/test';
 import { build } from 'esbuild';
 import { generateField } from '@/lib/synthetic/generate-field';
+import { arg, quantile } from './support';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
 const MARKS = 1000;
 const TARGET_MS = 16;
-
-function arg(name: string, fallback: number): number {
-  const i = process.argv.indexOf(`--${name}`);
-  const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
-  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
-  return v;
-}
-
-function quantile(xs: number[], q: number): number {
-  const s = [...xs].sort((a, b) => a - b);
-  if (s.length === 0) return NaN;
-  const pos = (s.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return s[lo]! + (s[hi]! - s[lo]!) * (pos - lo);
-}
 
 interface Timings {
   place: number[];

@@ -24,16 +24,10 @@ import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
 import { ingestImage } from '@/lib/images/ingest';
 import { generateField, type FieldFormat } from '@/lib/synthetic/generate-field';
+import { arg, quantile } from './support';
 
 const LIMITS = { maxBytes: 200 * 1024 * 1024, maxPixels: 50_000_000 };
 const TARGET = 1.3;
-
-function arg(name: string, fallback: number): number {
-  const i = process.argv.indexOf(`--${name}`);
-  const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
-  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
-  return v;
-}
 
 /** sharp alone: the same two outputs, no checks, no checksum. */
 async function sharpAlone(file: string, is16Bit: boolean): Promise<void> {
@@ -63,15 +57,8 @@ async function runCase(name: CaseName, item: Item): Promise<void> {
   else await pipeline(item.file);
 }
 
-function quantile(sorted: number[], q: number): number {
-  if (sorted.length === 0) return NaN;
-  const pos = (sorted.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return sorted[lo] + (sorted[hi] - sorted[lo]) * (pos - lo);
-}
-const median = (xs: number[]) => quantile([...xs].sort((a, b) => a - b), 0.5);
-const p95 = (xs: number[]) => quantile([...xs].sort((a, b) => a - b), 0.95);
+const median = (xs: number[]) => quantile(xs, 0.5);
+const p95 = (xs: number[]) => quantile(xs, 0.95);
 const mb = (bytes: number) => (bytes / (1024 * 1024)).toFixed(0);
 
 /**

@@ -5,15 +5,11 @@ import knexFactory from 'knex';
 import sharp from 'sharp';
 import { knexConfig } from '../../knexfile';
 import { APP_URL, signedIn, USERS } from '../integration/support/http';
+import { arg, benchRead, quantile, removeBenchReads } from './support';
 
-const arg = (name: string, dflt: number) => {
-  const i = process.argv.indexOf(`--${name}`);
-  return i > 0 ? Number(process.argv[i + 1]) : dflt;
-};
 const WRITERS = arg('writers', 50);
 const PER_WRITER = arg('per-writer', 40);
 
-const pct = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
 
 async function runWriters(work: (writer: number, i: number) => Promise<void>) {
   const latencies: number[] = [];
@@ -28,21 +24,17 @@ async function runWriters(work: (writer: number, i: number) => Promise<void>) {
     }),
   );
   const seconds = (performance.now() - t0) / 1000;
-  latencies.sort((a, b) => a - b);
-  return { perSecond: latencies.length / seconds, p50: pct(latencies, 50), p99: pct(latencies, 99), n: latencies.length };
+  return { perSecond: latencies.length / seconds, p50: quantile(latencies, 0.5), p99: quantile(latencies, 0.99), n: latencies.length };
 }
 
 async function main() {
   const db = knexFactory({ ...knexConfig(), pool: { min: 0, max: WRITERS } });
   const s = await signedIn(USERS.tech);
-  const stallion = (await s.json('/api/stallions?pageSize=5')).body.rows[0];
-  const collection = (await s.json('/api/collections', 'POST', {
-    stallionId: stallion.id, collectedAt: new Date().toISOString(), volumeMl: 50, concentrationMethod: 'entered', concentrationMillionPerMl: 150,
-    totalMotilityPct: 70, progressiveMotilityPct: 60, preparation: 'eosin_nigrosin', optics: 'bright_field', magnification: 1000, remarks: 'benchmark collection',
-  })).body.collection;
   const jpeg = await sharp({ create: { width: 4000, height: 3000, channels: 3, background: '#6b5a7a' } }).jpeg().toBuffer();
-  const image = ((await (await s.fetch(`/api/collections/${collection.id}/images?name=bench.jpg`, { method: 'POST', body: new Uint8Array(jpeg) })).json()) as any).image;
-  const read = (await s.json(`/api/collections/${collection.id}/reads`, 'POST', { kind: 'first' })).body.read;
+  const made = await benchRead(s, new Uint8Array(jpeg), 'bench.jpg');
+  const read = { id: made.readId };
+  const image = { id: made.imageId };
+  const collection = { id: made.collectionId };
   const techId = (await db('users').where({ email: USERS.tech }).first()).id;
   const set = await db('class_sets').where({ is_default: true }).first();
   const [baselineRead] = await db('reads').insert({ collection_id: collection.id, kind: 'second', reader_id: techId, class_set_id: set.id, class_set_snapshot: JSON.stringify({ name: 'bench', classes: [] }), target_cells: 200 });
@@ -98,11 +90,7 @@ async function main() {
   console.log(`\nTarget: route throughput ≥ 0.5 × bare insert — as the canvas sends under load (${BATCH} per request): ${batchRatio >= 0.5 ? 'PASS' : 'FAIL'} (${batchRatio.toFixed(2)}); one mark per request: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)}, bounded by the framework floor of ${floorRatio.toFixed(2)} requests per bare insert)`);
   console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + batchSaves.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
   // The benchmark's rows stay out of the demo: remove them.
-  await db('marks').whereIn('read_id', [read.id, baselineRead]).delete();
-  await db('mark_ops').whereIn('read_id', [read.id]).delete();
-  await db('reads').whereIn('id', [read.id, baselineRead]).delete();
-  await s.json(`/api/images/${image.id}`, 'DELETE');
-  await db('collections').where({ id: collection.id }).delete();
+  await removeBenchReads(s, db, [made]);
   await db.destroy();
 }
 

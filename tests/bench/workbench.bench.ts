@@ -18,6 +18,7 @@ import { markerRadiusForScale } from '@/components/scoring/marker-draw';
 import { fitToScreen } from '@/lib/scoring/viewport';
 import { mulberry32 } from '@/lib/synthetic/prng';
 import { APP_URL, signedIn, USERS, type Session } from '../integration/support/http';
+import { arg, benchRead, ok, quantile, removeBenchReads, type BenchRead } from './support';
 
 const W = 4000;
 const H = 3000;
@@ -26,54 +27,22 @@ const TARGET_MS = 16;
 /** Must match FIT_PADDING in components/scoring/field-canvas.tsx. */
 const FIT_PADDING = 12;
 
-function arg(name: string, fallback: number): number {
-  const i = process.argv.indexOf(`--${name}`);
-  const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
-  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
-  return v;
-}
-
-function quantile(xs: number[], q: number): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const pos = (s.length - 1) * q;
-  const lo = Math.floor(pos);
-  const hi = Math.ceil(pos);
-  return s[lo]! + (s[hi]! - s[lo]!) * (pos - lo);
-}
-
-async function ok<T>(r: Promise<{ status: number; body: T }>, what: string, expected = [200, 201]): Promise<T> {
-  const res = await r;
-  if (!expected.includes(res.status)) throw new Error(`${what}: ${res.status} ${JSON.stringify(res.body)}`);
-  return res.body;
-}
-
 /** A collection with one generated 4000 × 3000 field and a first read holding `marks` marks. */
-async function makeRead(s: Session, marks: number, seed: number) {
-  const stallion = (await ok(s.json('/api/stallions?pageSize=5'), 'stallions') as { rows: { id: number }[] }).rows[0]!;
-  const { collection } = await ok(
-    s.json('/api/collections', 'POST', {
-      stallionId: stallion.id, collectedAt: new Date().toISOString(), concentrationMethod: 'entered', preparation: 'eosin_nigrosin',
-      optics: 'bright_field', magnification: 1000, remarks: 'workbench benchmark collection',
-    }),
-    'collection',
-  ) as { collection: { id: number } };
+async function makeRead(s: Session, marks: number, seed: number): Promise<BenchRead> {
   const field = await generateField({ seed, width: W, height: H, cells: 80, format: 'jpeg', quality: 90 });
-  const up = await s.fetch(`/api/collections/${collection.id}/images?name=bench-${seed}.jpg`, { method: 'POST', body: new Uint8Array(field.image) });
-  if (up.status !== 201 && up.status !== 200) throw new Error(`upload: ${up.status} ${await up.text()}`);
-  const image = ((await up.json()) as { image: { id: number } }).image;
-  const { read } = await ok(s.json(`/api/collections/${collection.id}/reads`, 'POST', { kind: 'first' }), 'read') as { read: { id: number } };
-  const detail = await ok(s.json(`/api/reads/${read.id}`), 'read detail') as { read: { classSet: { classes: { key: string }[] } } };
+  const made = await benchRead(s, new Uint8Array(field.image), `bench-${seed}.jpg`);
+  const detail = (await ok(s.json(`/api/reads/${made.readId}`), 'read detail')) as { read: { classSet: { classes: { key: string }[] } } };
   const keys = detail.read.classSet.classes.map((c) => c.key);
   const rnd = mulberry32(seed);
   for (let done = 0; done < marks; done += 100) {
     const changes = Array.from({ length: Math.min(100, marks - done) }, () => ({
       opId: crypto.randomUUID(), markId: crypto.randomUUID(), kind: 'upsert',
-      payload: { imageId: String(image.id), x: rnd() * (W - 1), y: rnd() * (H - 1), classKey: keys[Math.floor(rnd() * keys.length)], tags: [] },
+      payload: { imageId: String(made.imageId), x: rnd() * (W - 1), y: rnd() * (H - 1), classKey: keys[Math.floor(rnd() * keys.length)], tags: [] },
     }));
-    const r = await ok(s.json(`/api/reads/${read.id}/sync`, 'POST', { changes }), 'marks') as { acked: unknown[] };
+    const r = (await ok(s.json(`/api/reads/${made.readId}/sync`, 'POST', { changes }), 'marks')) as { acked: unknown[] };
     if (r.acked.length !== changes.length) throw new Error(`only ${r.acked.length} of ${changes.length} marks stored`);
   }
-  return { collectionId: collection.id, imageId: image.id, readId: read.id };
+  return made;
 }
 
 declare global {
@@ -85,7 +54,7 @@ declare global {
 
 /** Clicks `placements` marks onto free spots of the field and returns the in-page times. */
 async function placeMarks(s: Session, page: Page, readId: number, placements: number, seed: number): Promise<number[]> {
-  const taken = (await ok(s.json(`/api/reads/${readId}`), 'read detail') as { marks: { x: number; y: number }[] }).marks;
+  const taken = ((await ok(s.json(`/api/reads/${readId}`), 'read detail')) as { marks: { x: number; y: number }[] }).marks;
   await page.goto(`${APP_URL}/reads/${readId}`);
   const canvas = page.getByTestId('field-canvas');
   await canvas.locator('canvas').first().waitFor();
@@ -169,16 +138,10 @@ async function main() {
     console.log(`\np95 place + repaint in the workbench < ${TARGET_MS} ms: ${p95 < TARGET_MS ? 'PASS' : 'FAIL'} (${f(p95)} ms)`);
   } finally {
     await browser.close();
-    // The benchmark's rows stay out of the demo: remove its reads, marks, images and collections.
+    // The benchmark's rows stay out of the demo.
     const db = knexFactory(knexConfig());
     try {
-      for (const r of [full, empty]) {
-        await db('marks').where({ read_id: r.readId }).delete();
-        await db('mark_ops').where({ read_id: r.readId }).delete();
-        await db('reads').where({ id: r.readId }).delete();
-        await s.json(`/api/images/${r.imageId}`, 'DELETE');
-        await db('collections').where({ id: r.collectionId }).delete();
-      }
+      await removeBenchReads(s, db, [full, empty]);
     } finally {
       await db.destroy();
     }

@@ -1,0 +1,59 @@
+// Shared by the benchmarks: command-line numbers, quantiles, and a throw-away read in the running app.
+import type { Knex } from 'knex';
+import type { Session } from '../integration/support/http';
+
+/** `--name N` from the command line, a positive whole number. */
+export function arg(name: string, fallback: number): number {
+  const i = process.argv.indexOf(`--${name}`);
+  const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
+  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
+  return v;
+}
+
+/** The q-quantile (0–1) with linear interpolation between order statistics. */
+export function quantile(xs: number[], q: number): number {
+  const s = [...xs].sort((a, b) => a - b);
+  if (s.length === 0) return NaN;
+  const pos = (s.length - 1) * q;
+  const lo = Math.floor(pos);
+  const hi = Math.ceil(pos);
+  return s[lo]! + (s[hi]! - s[lo]!) * (pos - lo);
+}
+
+export type BenchRead = { collectionId: number; imageId: number; readId: number };
+
+/** The body of a 200/201 answer; anything else stops the benchmark with the answer. */
+export async function ok<T>(r: Promise<{ status: number; body: T }>, what: string): Promise<T> {
+  const res = await r;
+  if (res.status !== 200 && res.status !== 201) throw new Error(`${what}: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body;
+}
+
+/** A collection with one field image and a first read, made through the app's own API. */
+export async function benchRead(s: Session, image: Uint8Array<ArrayBuffer>, name: string): Promise<BenchRead> {
+  const stallion = ((await ok(s.json('/api/stallions?pageSize=5'), 'stallions')) as { rows: { id: number }[] }).rows[0]!;
+  const { collection } = (await ok(
+    s.json('/api/collections', 'POST', {
+      stallionId: stallion.id, collectedAt: new Date().toISOString(), concentrationMethod: 'entered', preparation: 'eosin_nigrosin',
+      optics: 'bright_field', magnification: 1000, remarks: 'benchmark collection',
+    }),
+    'collection',
+  )) as { collection: { id: number } };
+  const up = await s.fetch(`/api/collections/${collection.id}/images?name=${encodeURIComponent(name)}`, { method: 'POST', body: image });
+  if (up.status !== 201 && up.status !== 200) throw new Error(`upload: ${up.status} ${await up.text()}`);
+  const { image: stored } = (await up.json()) as { image: { id: number } };
+  const { read } = (await ok(s.json(`/api/collections/${collection.id}/reads`, 'POST', { kind: 'first' }), 'read')) as { read: { id: number } };
+  return { collectionId: collection.id, imageId: stored.id, readId: read.id };
+}
+
+/** Removes what benchRead made (and any other reads of those collections), so the demo stays as it was. */
+export async function removeBenchReads(s: Session, db: Knex, made: BenchRead[]): Promise<void> {
+  for (const r of made) {
+    const reads = await db('reads').where({ collection_id: r.collectionId }).pluck('id');
+    await db('marks').whereIn('read_id', reads).delete();
+    await db('mark_ops').whereIn('read_id', reads).delete();
+    await db('reads').whereIn('id', reads).delete();
+    await s.json(`/api/images/${r.imageId}`, 'DELETE');
+    await db('collections').where({ id: r.collectionId }).delete();
+  }
+}
