@@ -7,17 +7,20 @@ import { afterAll, describe, expect, it } from 'vitest';
 
 // The service scripts on a scratch profile of their own (own ports and data folder).
 const dir = mkdtempSync(join(tmpdir(), 'fm-svc-'));
+// Ports a fixed step above this run's own, so test runs side by side (other checkouts) do not collide.
+const near = (name: string, fallback: number) => String(Number(process.env[name] ?? fallback) + 5);
+const DB_PORT = near('DB_PORT', 3417);
 const env = {
   ...process.env,
   FIELDMARK_PROFILE: 'scratch',
   DATA_DIR: dir,
-  DB_PORT: '3437',
-  S3_PORT: '4599',
-  SMTP_PORT: '1055',
-  MAIL_WEB_PORT: '1110',
-  PORT: '3199',
-  S3_ENDPOINT: 'http://127.0.0.1:4599',
-  MAIL_WEB_URL: 'http://127.0.0.1:1110',
+  DB_PORT,
+  S3_PORT: near('S3_PORT', 4579),
+  SMTP_PORT: near('SMTP_PORT', 1035),
+  MAIL_WEB_PORT: near('MAIL_WEB_PORT', 1090),
+  PORT: near('PORT', 3100),
+  S3_ENDPOINT: `http://127.0.0.1:${near('S3_PORT', 4579)}`,
+  MAIL_WEB_URL: `http://127.0.0.1:${near('MAIL_WEB_PORT', 1090)}`,
 };
 const services = (cmd: string) => spawnSync('bash', ['scripts/services.sh', cmd], { env, encoding: 'utf8', timeout: 120_000 });
 const sql = (q: string) => execFileSync('mariadb', ['--no-defaults', `--socket=${dir}/run/mariadb.sock`, '-uroot', '-N', '-e', q], { encoding: 'utf8' }).trim();
@@ -50,19 +53,19 @@ describe('service scripts', { timeout: 120_000 }, () => {
 
   it('say clearly when a port is taken', async () => {
     services('stop');
-    const blocker = await occupy(3437);
+    const blocker = await occupy(Number(DB_PORT));
     try {
       const r = services('start');
       expect(r.status).toBe(1);
-      expect(r.stderr).toMatch(/port 3437 is taken by another program; set DB_PORT/);
+      expect(r.stderr).toMatch(new RegExp(`port ${DB_PORT} is taken by another program; set DB_PORT`));
     } finally {
       blocker.close();
     }
-    const app = await occupy(3199);
+    const app = await occupy(Number(env.PORT));
     try {
       const r = spawnSync('bash', ['scripts/start.sh'], { env, encoding: 'utf8', timeout: 120_000 });
       expect(r.status).toBe(1);
-      expect(r.stderr).toMatch(/port 3199 is already in use/);
+      expect(r.stderr).toMatch(new RegExp(`port ${env.PORT} is already in use`));
     } finally {
       app.close();
     }
