@@ -14,3 +14,6 @@ export const fmtDate = (iso: string, timeZone = 'UTC') =>
 
 /** 10^9 with two decimals, the unit written out. */
 export const billions = (v: number | null | undefined) => (v == null ? '—' : `${fmt(v, 2)} × 10⁹`);
+
+/** A percentage with a fixed number of decimals, or a dash when there is none (the scoring tally). */
+export const formatPct = (v: number | null | undefined, digits = 1): string => (v === null || v === undefined ? '—' : `${v.toFixed(digits)} %`);

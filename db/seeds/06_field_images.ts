@@ -66,7 +66,7 @@ export async function seed(knex: Knex): Promise<void> {
       await knex('marks').insert(
         marks.map((m) => ({
           id: crypto.randomUUID(), read_id: readId, image_id: m.imageId, x: Math.round(m.x * 100) / 100, y: Math.round(m.y * 100) / 100, class_key: m.classKey, tags: '[]',
-          counts_as_sperm: true, is_normal: m.classKey === 'normal', version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: tech.id,
+          version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: tech.id,
         })),
       );
     }
