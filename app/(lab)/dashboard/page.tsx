@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import { collectionsAwaitingFirstRead, fileCounts, readsInProgress, seasonOverview, userOverview } from '@/db/queries/dashboard';
 import { getLabSettings } from '@/db/queries/settings';
-import { fmtDate, fmtDateTime } from '@/lib/format';
+import { countOf, fmtDate, fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
 import { READ_KIND_LABELS } from '@/lib/reads/kinds';
@@ -78,7 +78,7 @@ export default async function DashboardPage() {
                 {waiting.map((c) => (
                   <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
                     <Link href={`/collections/${c.id}`}>{c.stallion} · {fmtDateTime(c.collectedAt, timeZone)}</Link>
-                    <span className="text-ink-soft">{c.images} image{c.images === 1 ? '' : 's'} · not started</span>
+                    <span className="text-ink-soft">{countOf(c.images, 'image')} · not started</span>
                   </li>
                 ))}
               </ul>
@@ -96,7 +96,7 @@ export default async function DashboardPage() {
                       {r.stallion} · {fmtDateTime(r.collectedAt, timeZone)}
                     </Link>
                     <span className="text-ink-soft">
-                      {READ_KIND_LABELS[r.kind]} · {r.mine ? 'yours' : r.readerName} · {r.marks} mark{r.marks === 1 ? '' : 's'}
+                      {READ_KIND_LABELS[r.kind]} · {r.mine ? 'yours' : r.readerName} · {countOf(r.marks, 'mark')}
                     </span>
                   </li>
                 ))}
@@ -125,9 +125,9 @@ export default async function DashboardPage() {
             <li>
               <Link href="/admin/users" className="font-medium">Users</Link>
               <span className="block text-ink-soft">
-                {users.active.technician} technicians, {users.active.veterinarian} veterinarians, {users.active.lab_manager} lab managers,{' '}
-                {users.active.client} clients · {users.invitationsOpen} invitation{users.invitationsOpen === 1 ? '' : 's'} not yet taken up ·{' '}
-                {users.deactivated} deactivated
+                {countOf(users.active.technician, 'technician')}, {countOf(users.active.veterinarian, 'veterinarian')},{' '}
+                {countOf(users.active.lab_manager, 'lab manager')}, {countOf(users.active.client, 'client')} ·{' '}
+                {countOf(users.invitationsOpen, 'invitation')} not yet taken up · {users.deactivated} deactivated
               </span>
             </li>
             <li>

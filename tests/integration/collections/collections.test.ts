@@ -26,7 +26,7 @@ describe('collections API', () => {
     expect(after).toMatchObject({ stallion_id: st.id, collected_at: '2026-06-01T09:00:00.000Z', volume_ml: 50, concentration_m_per_ml: 150, progressive_motility_pct: 60, recorded_by: techId });
   });
 
-  it('works out concentration from counting-chamber counts (1:20, 500 in 5 squares → 500 × 10^6/mL; REFERENCES.md, WHO 2010 worked example)', async () => {
+  it('works out concentration from counting-chamber counts (1:20, 500 in 5 squares → 500 × 10^6/mL; WHO laboratory manual 2010 worked example, docs/references.md)', async () => {
     const s = await signedIn(USERS.tech);
     const st = await makeStallion();
     const r = await s.json('/api/collections', 'POST', goodCollection(st.id, { concentrationMethod: 'chamber', concentrationMillionPerMl: null, chamberDilution: 20, chamberSquares: 5, chamberCount1: 500, chamberCount2: 500 }));

@@ -35,7 +35,7 @@ describe('tallyMarks', () => {
     expect(t.nonSpermCounted).toBe(2);
     expect(t.normalCount).toBe(6);
     expect(t.abnormalCount).toBe(4);
-    // % normal = normal / cells counted = 6 / 10 (computed from the definition in REFERENCES.md)
+    // % normal = normal / cells counted = 6 / 10 (computed from the definition; common practice, docs/references.md)
     expect(t.pctNormal).toBeCloseTo(60, 12);
     expect(t.pctAbnormal).toBeCloseTo(40, 12);
   });
