@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import type { Knex } from 'knex';
 import { DEMO_FEVER, DEMO_RECORDERS, DEMO_STALLIONS, expectedAbnormalShare } from '../../lib/demo/scenario';
 import { UPLOAD_LIMITS } from '../../lib/images/limits';
+import { FIRST_READ, SUBMITTED } from '../../lib/reads/kinds';
 import { storeFieldImage } from '../../lib/images/store';
 import { DEFAULT_CLASS_WEIGHTS, generateField } from '../../lib/synthetic/generate-field';
 import { SPERM_CLASS_KEYS } from '../../lib/synthetic/sperm';
@@ -59,9 +60,9 @@ export async function seed(knex: Knex): Promise<void> {
       }
       if (!step.read) continue;
       const [readId] = await knex('reads').insert({
-        collection_id: c.id, kind: 'first', reader_id: tech.id, class_set_id: set.id,
+        collection_id: c.id, kind: FIRST_READ, reader_id: tech.id, class_set_id: set.id,
         class_set_snapshot: JSON.stringify({ name: set.name, classes: typeof set.classes === 'string' ? JSON.parse(set.classes) : set.classes }),
-        target_cells: 200, status: 'submitted', submitted_at: new Date(new Date(c.collected_at).getTime() + 3 * 3600e3),
+        target_cells: 200, status: SUBMITTED, submitted_at: new Date(new Date(c.collected_at).getTime() + 3 * 3600e3),
       });
       await knex('marks').insert(
         marks.map((m) => ({

@@ -3,6 +3,7 @@
 import { useCallback, useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { backoff, ChangeQueue, syncOnce, type Change, type SendResult, type StorageLike } from '@/lib/scoring/queue';
 import type { ScoringMark } from '@/lib/scoring/types';
+import { SUBMITTED, type ReadStatus } from '@/lib/reads/kinds';
 import { useLatest } from './use-latest';
 
 /*
@@ -13,7 +14,7 @@ import { useLatest } from './use-latest';
  */
 
 export interface ServerReadState {
-  read: { status: 'open' | 'submitted'; canEdit: boolean };
+  read: { status: ReadStatus; canEdit: boolean };
   marks: ScoringMark[];
 }
 
@@ -166,7 +167,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
       const body = (await res.json()) as S;
       // An ack landed while we were asking: this copy may predate it, so wait for the next one.
       if (gen !== ackGen.current || runningRef.current) return;
-      if (body.read.status === 'submitted') lockedRef.current = true;
+      if (body.read.status === SUBMITTED) lockedRef.current = true;
       handlersRef.current.onServerState(body);
       refreshStatus();
     } catch {
