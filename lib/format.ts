@@ -14,3 +14,9 @@ export const fmtDate = (iso: string, timeZone = 'UTC') =>
 
 /** 10^9 with two decimals, the unit written out. */
 export const billions = (v: number | null | undefined) => (v == null ? '—' : `${fmt(v, 2)} × 10⁹`);
+
+/** A percentage with a fixed number of decimals, or a dash when there is none (the scoring tally). */
+export const formatPct = (v: number | null | undefined, digits = 1): string => (v === null || v === undefined ? '—' : `${v.toFixed(digits)} %`);
+
+/** "1 image", "3 images": a count with its noun. */
+export const countOf = (n: number, singular: string, plural = `${singular}s`) => `${n} ${n === 1 ? singular : plural}`;

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # npm test: the same set-up as npm start, on throw-away data folders and ports
-# (profile "test"), then unit, integration and browser tests against the real services.
+# (profile "test"), then the type check and lint, then unit, integration and browser tests
+# against the real services.
 set -uo pipefail
 export FIELDMARK_PROFILE=test
 . "$(dirname "$0")/env.sh"
@@ -17,6 +18,10 @@ cleanup() {
 trap cleanup EXIT
 
 bash scripts/install.sh || exit 1
+# Fail fast: a type error or a lint finding stops the run before any service starts.
+say "type check (tsc) and lint (eslint)"
+npx tsc --noEmit || die "the type check failed (npm run typecheck)"
+npx eslint --max-warnings 0 . || die "lint found problems (npm run lint)"
 bash scripts/services.sh reset >/dev/null
 bash scripts/services.sh start || exit 1
 mkdir -p "$RESULTS" "$LOG_DIR"

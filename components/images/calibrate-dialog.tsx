@@ -43,7 +43,7 @@ export function CalibrateDialog({ image, onApply, onClose }: { image: Img; onApp
         <h2 id="calibrate-title">Calibrate the scale on {image.fileName}</h2>
         <p className="text-sm text-ink-soft">Click the two ends of a known length on the stage micrometer, then give that length.</p>
         <div className="relative">
-          {/* eslint-disable-next-line @next/next/no-img-element */}
+          {/* eslint-disable-next-line @next/next/no-img-element -- our own image route serves sized copies (thumb, display); next/image would resize them again */}
           <img ref={imgRef} src={image.displayUrl} alt={`Field image ${image.fileName} for calibration`} className="w-full cursor-crosshair select-none" onClick={onClick} draggable={false} />
           <svg className="pointer-events-none absolute inset-0 h-full w-full" viewBox={`0 0 ${image.width} ${image.height}`} preserveAspectRatio="none" aria-hidden>
             {points.map((p, i) => <circle key={i} cx={p.x} cy={p.y} r={image.width / 150} fill="none" stroke="#E69F00" strokeWidth={image.width / 500} />)}

@@ -34,7 +34,7 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
       <ol aria-label="Field images" className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
         {images.map((img, i) => (
           <li key={img.id} className="card space-y-2 p-3" aria-label={`Image ${i + 1}: ${img.fileName}`}>
-            {/* eslint-disable-next-line @next/next/no-img-element */}
+            {/* eslint-disable-next-line @next/next/no-img-element -- our own image route serves sized copies (thumb, display); next/image would resize them again */}
             <img src={img.thumbUrl} alt={`Thumbnail of ${img.fileName}`} className="aspect-[4/3] w-full rounded bg-paper-sunk object-contain" loading="lazy" />
             <p className="truncate text-sm font-medium" title={img.fileName}>{i + 1}. {img.fileName}</p>
             <p className="text-xs text-ink-soft">

@@ -9,14 +9,16 @@ type Item = { key: string; name: string; size: number; progress: number; state: 
 const PARALLEL = 2;
 
 /** Sends one file as the raw request body, reporting upload progress (fetch cannot). */
-function sendFile(url: string, file: File, onProgress: (p: number) => void): Promise<{ status: number; body: any }> {
+type UploadAnswer = { duplicate?: boolean; error?: { message?: string } } | null;
+
+function sendFile(url: string, file: File, onProgress: (p: number) => void): Promise<{ status: number; body: UploadAnswer }> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', url);
     xhr.setRequestHeader('content-type', 'application/octet-stream');
     xhr.upload.onprogress = (e) => e.lengthComputable && onProgress(e.loaded / e.total);
     xhr.onload = () => {
-      let body: any = null;
+      let body: UploadAnswer = null;
       try {
         body = JSON.parse(xhr.responseText);
       } catch {
@@ -40,25 +42,28 @@ export function UploadZone({ collectionId, defaults, onUploaded }: { collectionI
   const update = (key: string, patch: Partial<Item>) => setItems((list) => list.map((i) => (i.key === key ? { ...i, ...patch } : i)));
 
   const pump = useCallback(() => {
-    while (active.current < PARALLEL && queue.current.length) {
-      const { key, file } = queue.current.shift()!;
-      active.current++;
-      update(key, { state: 'uploading' });
-      const qs = new URLSearchParams({ name: file.name, magnification, optics });
-      if (scale.trim()) qs.set('micronsPerPixel', scale.trim());
-      sendFile(`/api/collections/${collectionId}/images?${qs}`, file, (p) => update(key, { progress: p }))
-        .then(({ status, body }) => {
-          if (status === 201) update(key, { state: 'done', progress: 1 });
-          else if (status === 200 && body?.duplicate) update(key, { state: 'duplicate', progress: 1, message: 'Already in this collection (same checksum); not stored twice.' });
-          else update(key, { state: 'error', message: body?.error?.message ?? `The server answered ${status}.` });
-        })
-        .catch((err: Error) => update(key, { state: 'error', message: err.message }))
-        .finally(() => {
-          active.current--;
-          onUploaded();
-          pump();
-        });
-    }
+    const start = () => {
+      while (active.current < PARALLEL && queue.current.length) {
+        const { key, file } = queue.current.shift()!;
+        active.current++;
+        update(key, { state: 'uploading' });
+        const qs = new URLSearchParams({ name: file.name, magnification, optics });
+        if (scale.trim()) qs.set('micronsPerPixel', scale.trim());
+        sendFile(`/api/collections/${collectionId}/images?${qs}`, file, (p) => update(key, { progress: p }))
+          .then(({ status, body }) => {
+            if (status === 201) update(key, { state: 'done', progress: 1 });
+            else if (status === 200 && body?.duplicate) update(key, { state: 'duplicate', progress: 1, message: 'Already in this collection (same checksum); not stored twice.' });
+            else update(key, { state: 'error', message: body?.error?.message ?? `The server answered ${status}.` });
+          })
+          .catch((err: Error) => update(key, { state: 'error', message: err.message }))
+          .finally(() => {
+            active.current--;
+            onUploaded();
+            start();
+          });
+      }
+    };
+    start();
   }, [collectionId, magnification, optics, scale, onUploaded]);
 
   const onDrop = useCallback(

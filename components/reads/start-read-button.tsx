@@ -3,8 +3,9 @@
 import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { apiFetch } from '@/lib/api/fetcher';
+import type { ReadKind } from '@/lib/reads/kinds';
 
-export function StartReadButton({ collectionId, label }: { collectionId: number; label: string }) {
+export function StartReadButton({ collectionId, kind, label }: { collectionId: number; kind: ReadKind; label: string }) {
   const router = useRouter();
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
@@ -12,7 +13,7 @@ export function StartReadButton({ collectionId, label }: { collectionId: number;
     setBusy(true);
     setError(null);
     try {
-      const { read } = await apiFetch<{ read: { id: number } }>(`/api/collections/${collectionId}/reads`, { method: 'POST', body: JSON.stringify({ kind: 'first' }) });
+      const { read } = await apiFetch<{ read: { id: number } }>(`/api/collections/${collectionId}/reads`, { method: 'POST', body: JSON.stringify({ kind }) });
       router.push(`/reads/${read.id}`);
     } catch (err) {
       setError(err instanceof Error ? err.message : 'The read could not be started.');

@@ -4,7 +4,7 @@ import type Konva from 'konva';
 import { memo, useCallback, useEffect, useLayoutEffect, useRef, useState, type RefObject } from 'react';
 import { Circle, Image as KonvaImage, Layer, Shape, Stage } from 'react-konva';
 import type { MarkClass } from '@/lib/class-sets/schema';
-import type { ScoringMark } from '@/lib/scoring/types';
+import type { FieldCanvasControl, FieldImageRef, ScoringMark } from '@/lib/scoring/types';
 import {
   fitToScreen,
   hitTest,
@@ -17,26 +17,9 @@ import {
   zoomAt,
   type Viewport,
 } from '@/lib/scoring/viewport';
-import { markerDrawer, markerRadiusForScale } from './marker-draw';
-import type { FieldImageRef } from './types';
+import { markerDrawer, markerRadiusForScale } from '@/lib/scoring/marker-draw';
 
-/** What the workbench (toolbar buttons and keys) can ask of the canvas. */
-export interface FieldCanvasControl {
-  fit(): void;
-  zoomBy(factor: number): void;
-  /** Arrow-key pan; false if the key is not an arrow. */
-  panKey(key: string, shift: boolean): boolean;
-  panBy(dx: number, dy: number): void;
-  setSpacePan(on: boolean): void;
-  /**
-   * Enter on the canvas, as a click at the centre cross: selects the mark under the cross,
-   * or places a new one there. 'off-image' when the cross is not over the image.
-   */
-  pressAtCentre(): 'selected' | 'placed' | 'off-image';
-  /** Whether keyboard focus is on the canvas itself. */
-  hasFocus(): boolean;
-  getStage(): Konva.Stage | null;
-}
+export type { FieldCanvasControl };
 
 export interface FieldCanvasProps {
   image: FieldImageRef;

@@ -2,9 +2,9 @@
 
 import { memo } from 'react';
 import type { MarkClass } from '@/lib/class-sets/schema';
-import type { ImageTally, MorphologyTally } from '@/lib/morphology/tally';
+import type { ImageTally, Morphology } from '@/lib/morphology/engine';
 import { MarkerSwatch } from './marker-swatch';
-import { formatPct } from './tally';
+import { formatPct } from '@/lib/format';
 
 /** Running counts for the image on screen and the whole read, with % normal and progress to the target. */
 export const TallyPanel = memo(function TallyPanel({
@@ -14,11 +14,11 @@ export const TallyPanel = memo(function TallyPanel({
   imageLabel,
 }: {
   classes: readonly MarkClass[];
-  read: MorphologyTally;
+  read: Morphology;
   image: ImageTally | undefined;
   imageLabel: string;
 }) {
-  const pct = Math.min(100, (read.cellsCounted / read.target) * 100);
+  const pct = read.targetProgressPct;
   const ci = read.normalIntervalPct;
   const sperm = classes.filter((c) => c.countsAsSperm);
   const other = classes.filter((c) => !c.countsAsSperm);

@@ -9,6 +9,7 @@ type Props<T> = {
   /** Accessible name of the table. */
   label: string;
   endpoint: string;
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- TanStack Table's own idiom: each column has its own value type, so a list of them can only say any.
   columns: ColumnDef<T, any>[];
   defaultSort: { id: string; desc: boolean };
   filters?: ListParams;

@@ -4,10 +4,11 @@ import { writeAudit } from '@/db/queries/audit';
 import { conflict, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import type { ClassSet, MarkClass } from '@/lib/class-sets/schema';
+import type { Row } from '@/db/row';
 
 export type StoredClassSet = ClassSet & { id: number; isDefault: boolean; revision: number; reads: number };
 
-const toSet = (r: Record<string, any>): StoredClassSet => ({
+const toSet = (r: Row): StoredClassSet => ({
   id: r.id,
   name: r.name,
   isDefault: !!r.is_default,

@@ -6,10 +6,11 @@ import { notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import type { ClientValues } from '@/lib/validations/client';
 import type { Page } from '@/lib/validations/fields';
+import type { Row } from '@/db/row';
 
 export type Client = { id: number; name: string; kind: 'owner' | 'referring_vet'; email: string | null; phone: string | null; address: string | null; notes: string | null; stallions: number };
 
-const toClient = (r: Record<string, any>): Client => ({
+const toClient = (r: Row): Client => ({
   id: r.id, name: r.name, kind: r.kind, email: r.email, phone: r.phone, address: r.address, notes: r.notes, stallions: Number(r.stallions ?? 0),
 });
 const toRow = (v: ClientValues) => ({ name: v.name, kind: v.kind, email: v.email ?? null, phone: v.phone ?? null, address: v.address ?? null, notes: v.notes ?? null });

@@ -3,6 +3,8 @@ import type { Knex } from 'knex';
 import { db } from '@/db/knex';
 import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
+import { morphologyByCollection, type ReadMorphology } from '@/db/queries/morphology';
+import type { Row } from '@/db/row';
 import { ApiError, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import { getLabSettings, labTimeZoneFor } from '@/db/queries/settings';
@@ -10,6 +12,7 @@ import { concentrationFromChamber } from '@/lib/semen/chamber';
 import { labDay, wallTimeToDate } from '@/lib/time/lab-time';
 import type { CollectionValues } from '@/lib/validations/collection';
 import type { Page } from '@/lib/validations/fields';
+import { FIRST_READ, type ReadStatus } from '@/lib/reads/kinds';
 
 export type Collection = {
   id: number;
@@ -34,13 +37,14 @@ export type Collection = {
   remarks: string | null;
   /** Days since this stallion's previous collection (fractional), null for his first. */
   daysSincePrevious: number | null;
-  /** Sperm cells marked in the first read and % normal among them (null before any mark). */
-  firstRead: { cells: number; pctNormal: number | null; status: 'open' | 'submitted' } | null;
+  /** Sperm cells counted in the first read and % normal among them (null before the read starts); from the morphology engine. */
+  firstRead: { cells: number; pctNormal: number | null; status: ReadStatus } | null;
 };
 
 const DAY_MS = 864e5;
 
-function toCollection(r: Record<string, any>): Collection {
+function toCollection(r: Row, reads: readonly ReadMorphology[]): Collection {
+  const first = reads.find((x) => x.kind === FIRST_READ);
   const at = new Date(r.collected_at);
   const prev = r.previous_at ? new Date(r.previous_at) : null;
   return {
@@ -65,9 +69,7 @@ function toCollection(r: Record<string, any>): Collection {
     recordedBy: r.recorded_by_name,
     remarks: r.remarks,
     daysSincePrevious: prev ? Math.round(((at.getTime() - prev.getTime()) / DAY_MS) * 10) / 10 : null,
-    firstRead: r.first_status
-      ? { cells: Number(r.first_cells ?? 0), pctNormal: r.first_cells > 0 ? (Number(r.first_normal) / Number(r.first_cells)) * 100 : null, status: r.first_status }
-      : null,
+    firstRead: first ? { cells: first.morphology.cellsCounted, pctNormal: first.morphology.pctNormal, status: first.status } : null,
   };
 }
 
@@ -81,14 +83,13 @@ function selectCollections(k: Knex | Knex.Transaction = db) {
       'u.name as recorded_by_name',
       // Backed by the (stallion_id, collected_at) index.
       k.raw('(select max(p.collected_at) from collections p where p.stallion_id = k.stallion_id and p.collected_at < k.collected_at) as previous_at'),
-      'fr.status as first_status',
-      // Totals straight from MariaDB: flags stored on each mark make them plain sums.
-      k.raw('(select sum(m.counts_as_sperm) from marks m where m.read_id = fr.id and m.deleted = 0) as first_cells'),
-      k.raw('(select sum(m.is_normal) from marks m where m.read_id = fr.id and m.deleted = 0) as first_normal'),
-    )
-    .leftJoin('reads as fr', function () {
-      this.on('fr.collection_id', 'k.id').andOn('fr.kind', k.raw('?', ['first']));
-    });
+    );
+}
+
+/** Rows to collections, with their reads' figures from the morphology engine (one grouped query for the lot). */
+async function withMorphology(actor: CurrentUser, rows: Row[]): Promise<Collection[]> {
+  const reads = await morphologyByCollection(actor, rows.map((r) => r.id));
+  return rows.map((r) => toCollection(r, reads.get(r.id) ?? []));
 }
 
 const SORT_COLUMNS = {
@@ -100,7 +101,7 @@ const SORT_COLUMNS = {
   totalSperm: db.raw('k.volume_ml * k.concentration_m_per_ml'),
 } as const;
 
-export async function listCollections(q: {
+export async function listCollections(actor: CurrentUser, q: {
   page: number; pageSize: number; sort: keyof typeof SORT_COLUMNS; dir: 'asc' | 'desc'; q?: string; stallionId?: number; from?: string; to?: string;
 }): Promise<Page<Collection>> {
   const timeZone = q.from || q.to ? (await getLabSettings()).timeZone : 'UTC';
@@ -120,22 +121,23 @@ export async function listCollections(q: {
     .orderBy('k.id', q.dir)
     .limit(q.pageSize)
     .offset((q.page - 1) * q.pageSize);
-  return { rows: rows.map(toCollection), total: Number(n), page: q.page, pageSize: q.pageSize };
+  return { rows: await withMorphology(actor, rows), total: Number(n), page: q.page, pageSize: q.pageSize };
 }
 
-export async function getCollection(id: number): Promise<Collection> {
+export async function getCollection(actor: CurrentUser, id: number): Promise<Collection> {
   const r = await selectCollections().where('k.id', id).first();
   if (!r) throw notFound('The collection');
-  return toCollection(r);
+  return (await withMorphology(actor, [r]))[0]!;
 }
 
 /** Collections of the same stallion within a few hours, for pairing first and second ejaculates. */
-export async function collectionsAround(stallionId: number, at: Date, hours = 6): Promise<Collection[]> {
-  const rows = await selectCollections()
-    .where('k.stallion_id', stallionId)
-    .whereBetween('k.collected_at', [new Date(at.getTime() - hours * 36e5), new Date(at.getTime() + hours * 36e5)])
-    .orderBy('k.collected_at');
-  return rows.map(toCollection);
+export async function collectionsAround(stallionId: number, at: Date, hours = 6): Promise<{ id: number; collectedAt: string }[]> {
+  const rows = await db('collections')
+    .where('stallion_id', stallionId)
+    .whereBetween('collected_at', [new Date(at.getTime() - hours * 36e5), new Date(at.getTime() + hours * 36e5)])
+    .orderBy('collected_at')
+    .select('id', 'collected_at');
+  return rows.map((r) => ({ id: r.id, collectedAt: new Date(r.collected_at).toISOString() }));
 }
 
 function toRow(v: CollectionValues) {
@@ -195,7 +197,7 @@ export async function createCollection(actor: CurrentUser, v: CollectionValues):
     await writeAudit(trx, { userId: actor.id, action: 'create', entity: 'collection', entityId: id, after: row });
     return id;
   });
-  return getCollection(id);
+  return getCollection(actor, id);
 }
 
 export async function updateCollection(actor: CurrentUser, id: number, v: CollectionValues): Promise<Collection> {
@@ -211,7 +213,7 @@ export async function updateCollection(actor: CurrentUser, id: number, v: Collec
     const { created_at, updated_at, id: _id, ...beforeRow } = before;
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'collection', entityId: id, before: beforeRow, after: row });
   });
-  return getCollection(id);
+  return getCollection(actor, id);
 }
 
 /** A stallion's collections in time order with total sperm (10^9), for output estimates and charts. */

@@ -1,27 +1,115 @@
 import 'server-only';
 import { db } from '@/db/knex';
+import type { Row } from '@/db/row';
+import type { CurrentUser } from '@/lib/auth/session';
+import { ROLES, type Role } from '@/lib/auth/roles';
+import { FIRST_READ, OPEN, SUBMITTED, type ReadKind } from '@/lib/reads/kinds';
+import { mayViewMarks } from '@/lib/reads/policy';
+import { labYear } from '@/lib/time/lab-time';
 
-export async function getLabOverview() {
-  const since = new Date(Date.now() - 30 * 864e5);
-  const [stallions, clients, recent] = await Promise.all([
-    db('stallions').count<{ n: number }[]>({ n: '*' }).first(),
-    db('clients').count<{ n: number }[]>({ n: '*' }).first(),
-    db('collections').where('collected_at', '>=', since).count<{ n: number }[]>({ n: '*' }).first(),
+/*
+ * The dashboard's figures and work lists. "This season" is the lab's calendar year of the newest
+ * collection on record, not the last 30 days from today: a lab looking back at a season months
+ * later still sees what it did, with the dates it covers.
+ */
+
+export type SeasonOverview = {
+  year: number;
+  /** First and last collection of the season (ISO instants). */
+  from: string;
+  to: string;
+  collections: number;
+  stallionsCollected: number;
+  /** Collections of the season whose first read is submitted. */
+  firstReadsSubmitted: number;
+};
+
+/** The season of the newest collection, or null when nothing is recorded yet. */
+export async function seasonOverview(timeZone: string): Promise<SeasonOverview | null> {
+  const latest = await db('collections').max({ at: 'collected_at' }).first();
+  if (!latest?.at) return null;
+  const { year, start, end } = labYear(new Date(latest.at), timeZone);
+  const inSeason = () => db('collections as k').where('k.collected_at', '>=', start).where('k.collected_at', '<', end);
+  const [totals, read] = await Promise.all([
+    inSeason().first(db.raw('count(*) as n'), db.raw('count(distinct k.stallion_id) as stallions'), db.raw('min(k.collected_at) as first_at'), db.raw('max(k.collected_at) as last_at')),
+    inSeason().join('reads as r', 'r.collection_id', 'k.id').where({ 'r.kind': FIRST_READ, 'r.status': SUBMITTED }).count({ n: '*' }).first(),
   ]);
-  return { stallions: Number(stallions?.n ?? 0), clients: Number(clients?.n ?? 0), collectionsLast30Days: Number(recent?.n ?? 0) };
+  return {
+    year,
+    from: new Date(totals.first_at).toISOString(),
+    to: new Date(totals.last_at).toISOString(),
+    collections: Number(totals.n),
+    stallionsCollected: Number(totals.stallions),
+    firstReadsSubmitted: Number(read?.n ?? 0),
+  };
 }
 
-/** Collections with field images whose first read is not yet submitted: the technicians' worklist. */
-export async function collectionsAwaitingRead(limit = 10) {
-  const rows = await db('collections as k')
+export async function fileCounts(): Promise<{ stallions: number; clients: number }> {
+  const [stallions, clients] = await Promise.all([db('stallions').count({ n: '*' }).first(), db('clients').count({ n: '*' }).first()]);
+  return { stallions: Number(stallions?.n ?? 0), clients: Number(clients?.n ?? 0) };
+}
+
+export type AwaitingRead = { id: number; collectedAt: string; stallion: string; images: number };
+
+/** Collections with field images and no first read yet: the technicians' first work list. */
+export async function collectionsAwaitingFirstRead(limit = 10): Promise<AwaitingRead[]> {
+  const rows: Row[] = await db('collections as k')
     .join('stallions as s', 's.id', 'k.stallion_id')
+    .join('field_images as i', 'i.collection_id', 'k.id')
     .leftJoin('reads as r', function () {
-      this.on('r.collection_id', 'k.id').andOn('r.kind', db.raw('?', ['first']));
+      this.on('r.collection_id', 'k.id').andOnVal('r.kind', FIRST_READ);
     })
-    .whereExists(db('field_images as i').whereRaw('i.collection_id = k.id'))
-    .where((w) => w.whereNull('r.id').orWhere('r.status', 'open'))
+    .whereNull('r.id')
+    .groupBy('k.id', 'k.collected_at', 's.name')
     .orderBy('k.collected_at', 'desc')
     .limit(limit)
-    .select('k.id', 'k.collected_at', 's.name as stallion', 'r.status', db.raw('(select count(*) from field_images i where i.collection_id = k.id) as images'));
-  return rows.map((r) => ({ id: r.id as number, collectedAt: new Date(r.collected_at).toISOString(), stallion: r.stallion as string, started: r.status === 'open', images: Number(r.images) }));
+    .select('k.id', 'k.collected_at', 's.name as stallion')
+    .count({ images: 'i.id' });
+  return rows.map((r) => ({ id: r.id, collectedAt: new Date(r.collected_at).toISOString(), stallion: r.stallion, images: Number(r.images) }));
+}
+
+export type ReadInProgress = { readId: number; kind: ReadKind; collectionId: number; collectedAt: string; stallion: string; readerId: number; readerName: string; mine: boolean; marks: number };
+
+/** Open reads the user may see, their own first. */
+export async function readsInProgress(user: CurrentUser, limit = 10): Promise<ReadInProgress[]> {
+  const rows: Row[] = await db('reads as r')
+    .join('collections as k', 'k.id', 'r.collection_id')
+    .join('stallions as s', 's.id', 'k.stallion_id')
+    .join('users as u', 'u.id', 'r.reader_id')
+    .where('r.status', OPEN)
+    .orderByRaw('r.reader_id = ? desc', [user.id])
+    .orderBy('r.started_at', 'desc')
+    .limit(limit)
+    .select('r.id', 'r.kind', 'r.status', 'r.reader_id', 'k.id as collection_id', 'k.collected_at', 's.name as stallion', 'u.name as reader_name')
+    .select(db('marks as m').whereRaw('m.read_id = r.id').where('m.deleted', false).count('*').as('marks'));
+  return rows
+    .filter((r) => mayViewMarks(user, { id: r.id, kind: r.kind, status: r.status, readerId: r.reader_id }))
+    .map((r) => ({
+      readId: r.id,
+      kind: r.kind,
+      collectionId: r.collection_id,
+      collectedAt: new Date(r.collected_at).toISOString(),
+      stallion: r.stallion,
+      readerId: r.reader_id,
+      readerName: r.reader_name,
+      mine: r.reader_id === user.id,
+      marks: Number(r.marks),
+    }));
+}
+
+export type UserOverview = { active: Record<Role, number>; deactivated: number; invitationsOpen: number };
+
+/** Accounts by role, for the lab manager. */
+export async function userOverview(): Promise<UserOverview> {
+  const rows: Row[] = await db('users').groupBy('role', 'active').select('role', 'active', db.raw('sum(password_hash is null) as invited')).count({ n: '*' });
+  const active = Object.fromEntries(ROLES.map((r) => [r, 0])) as Record<Role, number>;
+  let deactivated = 0;
+  let invitationsOpen = 0;
+  for (const r of rows) {
+    if (r.active) {
+      active[r.role as Role] += Number(r.n);
+      invitationsOpen += Number(r.invited);
+    } else deactivated += Number(r.n);
+  }
+  return { active, deactivated, invitationsOpen };
 }

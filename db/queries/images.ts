@@ -12,6 +12,8 @@ import type { CurrentUser } from '@/lib/auth/session';
 import { UPLOAD_LIMITS } from '@/lib/images/limits';
 import { ObjectStoreError, storeFieldImage, type StoreImageInput } from '@/lib/images/store';
 import * as storage from '@/storage/s3';
+import type { Row } from '@/db/row';
+import { READ_KINDS, type ReadKind } from '@/lib/reads/kinds';
 
 export type FieldImage = {
   id: number;
@@ -29,13 +31,13 @@ export type FieldImage = {
   optics: string | null;
   uploadedBy: string;
   createdAt: string;
-  /** Cells marked on this image in each read (live marks only). */
-  marks: { first: number; second: number; settled: number };
+  /** Cells marked on this image in each kind of read (live marks only). */
+  marks: Record<ReadKind, number>;
   thumbUrl: string;
   displayUrl: string;
 };
 
-function toImage(r: Record<string, any>): FieldImage {
+function toImage(r: Row, marks: Record<ReadKind, number>): FieldImage {
   return {
     id: r.id,
     collectionId: r.collection_id,
@@ -52,22 +54,33 @@ function toImage(r: Record<string, any>): FieldImage {
     optics: r.optics,
     uploadedBy: r.uploaded_by_name,
     createdAt: new Date(r.created_at).toISOString(),
-    marks: { first: Number(r.marks_first ?? 0), second: Number(r.marks_second ?? 0), settled: Number(r.marks_settled ?? 0) },
+    marks,
     thumbUrl: `/api/images/${r.id}/thumb`,
     displayUrl: `/api/images/${r.id}/display`,
   };
 }
 
-const markCount = (kind: string) =>
-  db.raw(`(select count(*) from marks m join \`reads\` r on r.id = m.read_id where m.image_id = i.id and m.deleted = 0 and r.kind = '${kind}') as marks_${kind}`);
-
 export async function listImages(collectionId: number): Promise<FieldImage[]> {
-  const rows = await db('field_images as i')
-    .join('users as u', 'u.id', 'i.uploaded_by')
-    .where('i.collection_id', collectionId)
-    .orderBy('i.position')
-    .select('i.*', 'u.name as uploaded_by_name', markCount('first'), markCount('second'), markCount('settled'));
-  return rows.map(toImage);
+  const [rows, counts] = await Promise.all([
+    db('field_images as i').join('users as u', 'u.id', 'i.uploaded_by').where('i.collection_id', collectionId).orderBy('i.position').select('i.*', 'u.name as uploaded_by_name'),
+    // Live marks per image and kind of read, in one grouped query on the (image_id, read_id) index.
+    db('marks as m')
+      .join('field_images as i', 'i.id', 'm.image_id')
+      .join('reads as r', 'r.id', 'm.read_id')
+      .where('i.collection_id', collectionId)
+      .where('m.deleted', false)
+      .groupBy('m.image_id', 'r.kind')
+      .select('m.image_id', 'r.kind')
+      .count({ n: '*' }) as Promise<Row[]>,
+  ]);
+  const none = () => Object.fromEntries(READ_KINDS.map((k) => [k, 0])) as Record<ReadKind, number>;
+  const byImage = new Map<number, Record<ReadKind, number>>();
+  for (const c of counts) {
+    const marks = byImage.get(c.image_id) ?? none();
+    marks[c.kind as ReadKind] = Number(c.n);
+    byImage.set(c.image_id, marks);
+  }
+  return rows.map((r) => toImage(r, byImage.get(r.id) ?? none()));
 }
 
 export async function getImageRow(id: number) {

@@ -7,13 +7,14 @@ import { ApiError, conflict, forbidden, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import type { Page } from '@/lib/validations/fields';
 import type { StallionValues } from '@/lib/validations/stallion';
+import type { Row } from '@/db/row';
 
 export type Stallion = {
   id: number; name: string; registration: string | null; breed: string | null; foalingYear: number | null;
   clientId: number; owner: string; notes: string | null; collections: number; lastCollection: string | null;
 };
 
-const toStallion = (r: Record<string, any>): Stallion => ({
+const toStallion = (r: Row): Stallion => ({
   id: r.id, name: r.name, registration: r.registration, breed: r.breed, foalingYear: r.foaling_year, clientId: r.client_id,
   owner: r.owner, notes: r.notes, collections: Number(r.collections ?? 0), lastCollection: r.last_collection ? new Date(r.last_collection).toISOString() : null,
 });
@@ -102,4 +103,10 @@ export async function updateStallion(actor: CurrentUser, id: number, v: Stallion
 
 export async function stallionOptions(): Promise<{ id: number; name: string }[]> {
   return db('stallions').select('id', 'name').orderBy('name');
+}
+
+/** The stallions of the client the user speaks for (the portal); none for an account linked to no client. */
+export async function ownStallions(user: CurrentUser): Promise<{ id: number; name: string; breed: string | null; registration: string | null }[]> {
+  if (user.clientId == null) return [];
+  return db('stallions').where({ client_id: user.clientId }).orderBy('name').select('id', 'name', 'breed', 'registration');
 }

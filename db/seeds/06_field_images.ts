@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import type { Knex } from 'knex';
 import { DEMO_FEVER, DEMO_RECORDERS, DEMO_STALLIONS, expectedAbnormalShare } from '../../lib/demo/scenario';
 import { UPLOAD_LIMITS } from '../../lib/images/limits';
+import { FIRST_READ, SUBMITTED } from '../../lib/reads/kinds';
 import { storeFieldImage } from '../../lib/images/store';
 import { DEFAULT_CLASS_WEIGHTS, generateField } from '../../lib/synthetic/generate-field';
 import { SPERM_CLASS_KEYS } from '../../lib/synthetic/sperm';
@@ -59,14 +60,14 @@ export async function seed(knex: Knex): Promise<void> {
       }
       if (!step.read) continue;
       const [readId] = await knex('reads').insert({
-        collection_id: c.id, kind: 'first', reader_id: tech.id, class_set_id: set.id,
+        collection_id: c.id, kind: FIRST_READ, reader_id: tech.id, class_set_id: set.id,
         class_set_snapshot: JSON.stringify({ name: set.name, classes: typeof set.classes === 'string' ? JSON.parse(set.classes) : set.classes }),
-        target_cells: 200, status: 'submitted', submitted_at: new Date(new Date(c.collected_at).getTime() + 3 * 3600e3),
+        target_cells: 200, status: SUBMITTED, submitted_at: new Date(new Date(c.collected_at).getTime() + 3 * 3600e3),
       });
       await knex('marks').insert(
         marks.map((m) => ({
           id: crypto.randomUUID(), read_id: readId, image_id: m.imageId, x: Math.round(m.x * 100) / 100, y: Math.round(m.y * 100) / 100, class_key: m.classKey, tags: '[]',
-          counts_as_sperm: true, is_normal: m.classKey === 'normal', version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: tech.id,
+          version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: tech.id,
         })),
       );
     }

@@ -16,3 +16,11 @@ export const notFound = (what: string) => new ApiError(404, 'not_found', `${what
 export const forbidden = (message = 'Your role does not allow this.') => new ApiError(403, 'forbidden', message);
 export const conflict = (message: string) => new ApiError(409, 'conflict', message);
 export const invalid = (message: string, issues?: ApiIssue[]) => new ApiError(422, 'invalid_input', message, issues);
+
+/** For pages: a 404 from db/queries becomes null (the page calls notFound()); any other error still reaches error.tsx. */
+export function nullIfNotFound<T>(p: Promise<T>): Promise<T | null> {
+  return p.catch((err: unknown) => {
+    if (err instanceof ApiError && err.status === 404) return null;
+    throw err;
+  });
+}

@@ -27,7 +27,6 @@ export const DEMO_CLIENT_USER_EMAIL = 'owner@quillfield.example';
 // Random numbers
 
 // The project's one PRNG (deterministic: same seed, same numbers on every platform).
-export { mulberry32, type Random } from '../synthetic/prng';
 import { mulberry32, type Random } from '../synthetic/prng';
 
 /** Roughly normal, mean 0, sd ~1, bounded to ±3 (sum of three uniforms). */

@@ -1,8 +1,10 @@
 'use client';
 
-import { useCallback, useEffect, useRef, useState } from 'react';
+import { useCallback, useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { backoff, ChangeQueue, syncOnce, type Change, type SendResult, type StorageLike } from '@/lib/scoring/queue';
 import type { ScoringMark } from '@/lib/scoring/types';
+import { SUBMITTED, type ReadStatus } from '@/lib/reads/kinds';
+import { useLatest } from './use-latest';
 
 /*
  * Drives the scoring canvas's change queue: every mark change is queued (and kept in
@@ -12,7 +14,7 @@ import type { ScoringMark } from '@/lib/scoring/types';
  */
 
 export interface ServerReadState {
-  read: { status: 'open' | 'submitted'; canEdit: boolean };
+  read: { status: ReadStatus; canEdit: boolean };
   marks: ScoringMark[];
 }
 
@@ -95,8 +97,7 @@ async function errorMessage(res: Response): Promise<string> {
 
 export function useMarkSync<S extends ServerReadState>(readId: string, options: MarkSyncOptions, handlers: MarkSyncHandlers<S>) {
   const { enabled, sweepMs = 3000, pollMs = 10_000 } = options;
-  const handlersRef = useRef(handlers);
-  handlersRef.current = handlers;
+  const handlersRef = useLatest(handlers);
 
   const queueRef = useRef<ChangeQueue | null>(null);
   const persistedRef = useRef(true);
@@ -106,8 +107,9 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
   const attemptRef = useRef(0);
   const ackGen = useRef(0);
   const lockedRef = useRef(false);
-  const enabledRef = useRef(enabled);
-  enabledRef.current = enabled;
+  const enabledRef = useLatest(enabled);
+  /** The latest `round`, for the retry timer it sets itself. */
+  const roundRef = useRef<() => Promise<void>>(async () => {});
 
   const [status, setStatus] = useState<MarkSyncStatus>({
     online: true,
@@ -165,13 +167,13 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
       const body = (await res.json()) as S;
       // An ack landed while we were asking: this copy may predate it, so wait for the next one.
       if (gen !== ackGen.current || runningRef.current) return;
-      if (body.read.status === 'submitted') lockedRef.current = true;
+      if (body.read.status === SUBMITTED) lockedRef.current = true;
       handlersRef.current.onServerState(body);
       refreshStatus();
     } catch {
       // offline or server away: the next poll tries again
     }
-  }, [readId, refreshStatus]);
+  }, [readId, refreshStatus, handlersRef]);
 
   const round = useCallback(async (): Promise<void> => {
     if (runningRef.current || lockedRef.current || !enabledRef.current) return;
@@ -218,7 +220,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
       if (retryTimer.current) clearTimeout(retryTimer.current);
       retryTimer.current = setTimeout(() => {
         retryTimer.current = null;
-        void round();
+        void roundRef.current();
       }, wait);
       setStatus((s) => ({ ...s, rejections: rejections ? [...s.rejections, ...rejections].slice(-5) : s.rejections }));
       refreshStatus({ lastError: message });
@@ -228,8 +230,11 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
     setStatus((s) => ({ ...s, rejections: rejections ? [...s.rejections, ...rejections].slice(-5) : s.rejections }));
     refreshStatus({ lastError: null });
     if (rejections) void refresh();
-    if (q.pending().length > 0) void round();
-  }, [getQueue, send, refresh, refreshStatus]);
+    if (q.pending().length > 0) void roundRef.current();
+  }, [getQueue, send, refresh, refreshStatus, enabledRef, handlersRef]);
+  useLayoutEffect(() => {
+    roundRef.current = round;
+  }, [round]);
 
   /** Queue a change and send it soon (changes made within the same moment share a request). */
   const enqueue = useCallback(
@@ -270,7 +275,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
     handlersRef.current.onRestore(q);
     refreshStatus();
     if (q.size > 0) void round();
-  }, [getQueue, refreshStatus, round]);
+  }, [getQueue, refreshStatus, round, handlersRef]);
 
   useEffect(() => {
     if (!enabled) return;

@@ -258,7 +258,6 @@ export async function inspectImage(input: ImageInput, limits: ImageLimits): Prom
 
 // Bidi overrides and zero-width characters can make a name display as something else.
 const INVISIBLE = /[\u200b-\u200f\u202a-\u202e\u2060-\u2069\ufeff]/g;
-// eslint-disable-next-line no-control-regex
 const CONTROL = /[\u0000-\u001f\u007f-\u009f]/g;
 const RESERVED = /[<>:"|?*]/g;
 const MAX_NAME = 180;

@@ -37,7 +37,6 @@ export interface ReportEmailInput {
 }
 
 // Characters Windows, macOS or Linux refuse in file names, and control characters.
-// eslint-disable-next-line no-control-regex -- control characters are exactly what must go
 const UNSAFE_IN_FILENAMES = /[\u0000-\u001f\u007f-\u009f<>:"/\\|?*\u200b-\u200f\u2028-\u202e\u2066-\u2069]/g;
 const MAX_NAME_CHARS = 80;
 

@@ -1,6 +1,9 @@
 import { z } from 'zod';
 import type { MarkOp } from './history';
+import type { SendResult } from './sync-contract';
 import type { HasId, ScoringMark } from './types';
+
+export type { SendResult } from './sync-contract';
 
 /*
  * The outbound change queue of the scoring canvas.
@@ -308,15 +311,6 @@ export function backoff(attempt: number, { baseMs = 1000, capMs = 30_000, random
   const n = Math.max(0, Math.floor(attempt));
   const ceiling = Math.min(capMs, baseMs * Math.pow(2, Math.min(n, 30)));
   return ceiling / 2 + random() * (ceiling / 2);
-}
-
-/** What the server answered for one batch. Changes it does not mention count as failed. */
-export interface SendResult<P = ScoringMark> {
-  acked: { opId: string; markId: string; version?: number }[];
-  /** 409: the server's copy (null if the mark is gone) replaces ours. */
-  conflicts?: { opId: string; markId: string; server: P | null }[];
-  /** 4xx other than 409: retrying cannot help; shown to the user, then dropped. */
-  rejected?: { opId: string; markId: string; message: string }[];
 }
 
 export interface SyncOutcome<P = ScoringMark> {

@@ -1,3 +1,7 @@
+import type Konva from 'konva';
+import type { ClassSet } from '@/lib/class-sets/schema';
+import type { ReadKind, ReadStatus } from '@/lib/reads/kinds';
+
 /** A point in image pixels or screen pixels (the function's name says which). */
 export interface Point {
   x: number;
@@ -33,4 +37,64 @@ export function isUuidV4(s: string): boolean {
 /** A new mark or operation id; the crypto source is injectable for tests. */
 export function newId(source: { randomUUID(): string } = globalThis.crypto): string {
   return source.randomUUID();
+}
+
+/*
+ * A read as the scoring page and GET /api/reads/:id see it. Shared by the server (db/queries/reads.ts
+ * builds it) and the browser (the workbench renders it), so both sides agree on one shape.
+ */
+
+/** One read, with what the signed-in user may do with it. */
+export interface ReadDetail {
+  id: number;
+  collectionId: number;
+  stallion: string;
+  /** ISO date-time of the collection. */
+  collectedAt: string;
+  kind: ReadKind;
+  status: ReadStatus;
+  readerId: number;
+  readerName: string;
+  targetCells: number;
+  /** The class set as it was when the read started. */
+  classSet: ClassSet;
+  /** The signed-in user is the reader and the read is open. */
+  canEdit: boolean;
+}
+
+/** A field image of the read's collection, in position order. */
+export interface FieldImageRef {
+  id: string;
+  fileName: string;
+  width: number;
+  height: number;
+  micronsPerPixel: number | null;
+  position: number;
+  displayUrl: string;
+  thumbUrl: string;
+}
+
+/** Body of GET /api/reads/:id, and what the page hands the workbench. */
+export interface ReadPayload {
+  read: ReadDetail;
+  images: FieldImageRef[];
+  marks: ScoringMark[];
+}
+
+/** What the workbench (toolbar buttons and keys) can ask of the canvas. */
+export interface FieldCanvasControl {
+  fit(): void;
+  zoomBy(factor: number): void;
+  /** Arrow-key pan; false if the key is not an arrow. */
+  panKey(key: string, shift: boolean): boolean;
+  panBy(dx: number, dy: number): void;
+  setSpacePan(on: boolean): void;
+  /**
+   * Enter on the canvas, as a click at the centre cross: selects the mark under the cross,
+   * or places a new one there. 'off-image' when the cross is not over the image.
+   */
+  pressAtCentre(): 'selected' | 'placed' | 'off-image';
+  /** Whether keyboard focus is on the canvas itself. */
+  hasFocus(): boolean;
+  getStage(): Konva.Stage | null;
 }

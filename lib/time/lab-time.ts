@@ -60,3 +60,11 @@ export function labDay(at: Date, tz: string): { start: Date; end: Date } {
 export function labDayKey(at: Date, tz: string): string {
   return dateToWallTime(at, tz).slice(0, 10);
 }
+
+/** The lab's calendar year holding the instant, as [start, end) instants: the breeding season a dashboard counts. */
+export function labYear(at: Date, tz: string): { year: number; start: Date; end: Date } {
+  const year = new TZDate(at.getTime(), tz).getFullYear();
+  const start = new TZDate(year, 0, 1, 0, 0, 0, tz);
+  const end = new TZDate(year + 1, 0, 1, 0, 0, 0, tz);
+  return { year, start: new Date(start.getTime()), end: new Date(end.getTime()) };
+}

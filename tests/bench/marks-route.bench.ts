@@ -47,7 +47,7 @@ async function main() {
     const p = rnd();
     await db('marks').insert({
       id: crypto.randomUUID(), read_id: baselineRead, image_id: image.id, x: p.x.toFixed(2), y: p.y.toFixed(2), class_key: 'normal', tags: '[]',
-      counts_as_sperm: true, is_normal: true, version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: techId,
+      version: 1, deleted: false, last_op_id: crypto.randomUUID(), updated_by: techId,
     });
   });
   const routeRun = await runWriters(async () => {

@@ -14,7 +14,7 @@ import { chromium, type Page } from '@playwright/test';
 import knexFactory from 'knex';
 import { knexConfig } from '../../knexfile';
 import { generateField } from '@/lib/synthetic/generate-field';
-import { markerRadiusForScale } from '@/components/scoring/marker-draw';
+import { markerRadiusForScale } from '@/lib/scoring/marker-draw';
 import { fitToScreen } from '@/lib/scoring/viewport';
 import { mulberry32 } from '@/lib/synthetic/prng';
 import { APP_URL, signedIn, USERS, type Session } from '../integration/support/http';

@@ -19,7 +19,7 @@ test('a technician records a collection through the form and sees the arithmetic
   await expect(page.getByText('Progressive motility cannot exceed total motility.')).toBeVisible();
   await expect(page).toHaveURL(/\/collections\/new/);
 
-  // Worked example (REFERENCES.md, computed): 50 mL × 150 × 10^6/mL = 7.5 × 10^9; 60 % → 4.5 × 10^9 PMS;
+  // Worked example (computed from Kavak et al. 2003 and Brinsko 2006; docs/references.md): 50 mL × 150 × 10^6/mL = 7.5 × 10^9; 60 % → 4.5 × 10^9 PMS;
   // 9 fresh doses of 0.5 × 10^9 PMS, 4 cooled doses of 1 × 10^9 with 0.5 × 10^9 left.
   await page.getByLabel('Total motility (%)').fill('70');
   await page.getByLabel('Collected by').fill('Hollis Marwick');

@@ -1,13 +1,11 @@
-import { db } from '@/db/knex';
+import { ownStallions } from '@/db/queries/stallions';
 import { requirePageUser } from '@/lib/auth/session';
 
 export const metadata = { title: 'My stallions' };
 
 export default async function PortalPage() {
   const user = await requirePageUser(['client']);
-  const stallions = user.clientId
-    ? await db('stallions').where({ client_id: user.clientId }).orderBy('name').select('id', 'name', 'breed', 'registration')
-    : [];
+  const stallions = await ownStallions(user);
   return (
     <div className="space-y-4">
       <h1>My stallions</h1>

@@ -3,7 +3,7 @@ import { route } from '@/lib/api/handler';
 import { STAFF_ROLES } from '@/lib/auth/roles';
 import { collectionListQuery, collectionSchema } from '@/lib/validations/collection';
 
-export const GET = route({ roles: STAFF_ROLES, query: collectionListQuery }, async ({ query }) => listCollections(query));
+export const GET = route({ roles: STAFF_ROLES, query: collectionListQuery }, async ({ user, query }) => listCollections(user, query));
 
 export const POST = route({ roles: STAFF_ROLES, body: collectionSchema }, async ({ user, body }) =>
   Response.json({ collection: await createCollection(user, body) }, { status: 201 }),

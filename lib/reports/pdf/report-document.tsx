@@ -202,7 +202,7 @@ export function ReportDocument({ snapshot: r, verifyUrl }: ReportDocumentProps) 
             {r.collection.collectedBy && <KV k="Collected by">{r.collection.collectedBy}</KV>}
           </View>
         </View>
-        {!knownZone && <Text style={s.note}>Times are shown in UTC: the lab's time zone {r.settings.timeZone} is unknown to this system.</Text>}
+        {!knownZone && <Text style={s.note}>Times are shown in UTC: the lab’s time zone {r.settings.timeZone} is unknown to this system.</Text>}
         {r.collection.notes && <Text style={[s.note, { marginTop: 3 }]}>Notes: {r.collection.notes}</Text>}
 
         {/* Semen parameters and arithmetic */}
@@ -214,23 +214,23 @@ export function ReportDocument({ snapshot: r, verifyUrl }: ReportDocumentProps) 
               cols={semenCols}
               cells={[
                 'Concentration',
-                v.concentrationMillionPerMl === null ? '—' : <Text>{fmt(v.concentrationMillionPerMl, 0)} × 10<Text style={{ verticalAlign: 'super', fontSize: 5.5 }}>6</Text>/mL</Text>,
+                v.concentrationMillionPerMl === null ? '—' : <Text key="v">{fmt(v.concentrationMillionPerMl, 0)} × 10<Text style={{ verticalAlign: 'super', fontSize: 5.5 }}>6</Text>/mL</Text>,
                 v.concentrationMethod === 'chamber' ? 'counting chamber, two counts' : 'entered',
               ]}
             />
             <Row cols={semenCols} cells={['Total motility', pctText(v.totalMotilityPct, 0), 'assessed']} />
             <Row cols={semenCols} cells={['Progressive motility', pctText(v.progressiveMotilityPct, 0), 'assessed']} />
-            <Row cols={semenCols} cells={['Total sperm', <Billions value={v.totalSpermBillion} />, 'volume × concentration']} />
-            <Row cols={semenCols} cells={['Total motile sperm', <Billions value={v.totalMotileBillion} />, 'total × % motile']} />
-            <Row cols={semenCols} cells={['Progressively motile sperm (PMS)', <Billions value={v.progressivelyMotileBillion} />, 'total × % progressive']} />
+            <Row cols={semenCols} cells={['Total sperm', <Billions key="v" value={v.totalSpermBillion} />, 'volume × concentration']} />
+            <Row cols={semenCols} cells={['Total motile sperm', <Billions key="v" value={v.totalMotileBillion} />, 'total × % motile']} />
+            <Row cols={semenCols} cells={['Progressively motile sperm (PMS)', <Billions key="v" value={v.progressivelyMotileBillion} />, 'total × % progressive']} />
             <Row
               style={s.trTotal}
               cols={semenCols}
-              cells={['Progressively motile, morphologically normal (PMMN)', <Billions value={v.pmmnBillion} />, `PMS × % normal (${pctText(v.normalPctUsed)})`]}
+              cells={['Progressively motile, morphologically normal (PMMN)', <Billions key="v" value={v.pmmnBillion} />, `PMS × % normal (${pctText(v.normalPctUsed)})`]}
             />
           </View>
 
-          <Text style={s.h3}>Insemination doses at this lab's dose sizes</Text>
+          <Text style={s.h3}>Insemination doses at this lab’s dose sizes</Text>
           <View style={s.table}>
             <HeadRow cols={doseCols} cells={['Dose', 'Size', 'Doses', 'Left over']} />
             {v.doses.map((d) => (
@@ -239,12 +239,12 @@ export function ReportDocument({ snapshot: r, verifyUrl }: ReportDocumentProps) 
                 cols={doseCols}
                 cells={[
                   DOSE_LABELS[d.kind],
-                  <Text>
+                  <Text key="size">
                     {fmt(d.sizeBillion, 2)}
                     <E9 /> {BASIS_LABELS[d.basis]}
                   </Text>,
                   d.doses === null ? '—' : String(d.doses),
-                  <Billions value={d.remainderBillion} />,
+                  <Billions key="v" value={d.remainderBillion} />,
                 ]}
               />
             ))}
@@ -260,7 +260,7 @@ export function ReportDocument({ snapshot: r, verifyUrl }: ReportDocumentProps) 
           {r.breedingSoundness?.role === 'second' && (
             <Text>
               Second of two ejaculates ({fmt(r.breedingSoundness.gapMinutes, 0)} min after the first, collected {when(r.breedingSoundness.firstCollectedAt)}): PMMN{' '}
-              <Billions value={r.breedingSoundness.pmmnBillion} /> against a threshold of <Billions value={r.breedingSoundness.thresholdBillion} /> —{' '}
+              <Billions key="v" value={r.breedingSoundness.pmmnBillion} /> against a threshold of <Billions key="v" value={r.breedingSoundness.thresholdBillion} /> —{' '}
               <Text style={{ fontWeight: 700 }}>{BSE_STATUS_LABELS[r.breedingSoundness.status]}</Text>.
             </Text>
           )}

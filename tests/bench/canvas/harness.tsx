@@ -1,11 +1,11 @@
 // Browser side of tests/bench/canvas.bench.ts: the real FieldCanvas module on a
 // 4000 × 3000 field, driven and timed inside the page with performance.now().
 import Konva from 'konva';
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { flushSync } from 'react-dom';
 import { createRoot } from 'react-dom/client';
 import { FieldCanvas, type FieldCanvasControl } from '@/components/scoring/field-canvas';
-import type { FieldImageRef } from '@/components/scoring/types';
+import type { FieldImageRef } from '@/lib/scoring/types';
 import { DEFAULT_CLASS_SET } from '@/lib/class-sets/default-set';
 import type { ScoringMark } from '@/lib/scoring/types';
 import { mulberry32 } from '@/lib/synthetic/prng';
@@ -74,7 +74,9 @@ const control: { current: FieldCanvasControl | null } = { current: null };
 
 function App() {
   const [marks, setMarks] = useState<ScoringMark[]>([]);
-  setMarksOut = setMarks;
+  useEffect(() => {
+    setMarksOut = setMarks;
+  }, []);
   return (
     <div style={{ width: 1100, height: 720 }}>
       <FieldCanvas

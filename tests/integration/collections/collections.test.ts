@@ -19,10 +19,14 @@ describe('collections API', () => {
     // 2026-06-01 10:00 → 06-04 09:00 is 2.96 days, shown to one decimal.
     expect(r3.body.collection.daysSincePrevious).toBe(3);
     const audit = await testDb()('audit_log').where({ entity: 'collection', entity_id: String(r1.body.collection.id), action: 'create' }).first();
-    expect(audit.user_id).toBeTruthy();
+    // Who recorded it, what, and the row as stored (no before: it is new).
+    const techId = (await testDb()('users').where({ email: USERS.tech }).first('id')).id;
+    expect(audit).toMatchObject({ user_id: techId, action: 'create', entity: 'collection', before: null });
+    const after = typeof audit.after === 'string' ? JSON.parse(audit.after) : audit.after;
+    expect(after).toMatchObject({ stallion_id: st.id, collected_at: '2026-06-01T09:00:00.000Z', volume_ml: 50, concentration_m_per_ml: 150, progressive_motility_pct: 60, recorded_by: techId });
   });
 
-  it('works out concentration from counting-chamber counts (1:20, 500 in 5 squares → 500 × 10^6/mL; REFERENCES.md, WHO 2010 worked example)', async () => {
+  it('works out concentration from counting-chamber counts (1:20, 500 in 5 squares → 500 × 10^6/mL; WHO laboratory manual 2010 worked example, docs/references.md)', async () => {
     const s = await signedIn(USERS.tech);
     const st = await makeStallion();
     const r = await s.json('/api/collections', 'POST', goodCollection(st.id, { concentrationMethod: 'chamber', concentrationMillionPerMl: null, chamberDilution: 20, chamberSquares: 5, chamberCount1: 500, chamberCount2: 500 }));

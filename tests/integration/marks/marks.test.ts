@@ -44,7 +44,9 @@ describe('marks', () => {
     const put = await tech.json(`/api/reads/${readId}/marks/${id}`, 'PUT', { opId: uuid(), imageId, x: 300, y: 310, classKey: 'detached_head', tags: [], baseVersion: 2 });
     expect(put.body.mark).toMatchObject({ classKey: 'detached_head', version: 3 });
     const row = await testDb()('marks').where({ id }).first();
-    expect([Number(row.x), Number(row.y), row.class_key, !!row.is_normal]).toEqual([300, 310, 'detached_head', false]);
+    expect([Number(row.x), Number(row.y), row.class_key]).toEqual([300, 310, 'detached_head']);
+    // A mark keeps the reader's decision only; whether it is normal comes from the read's class set.
+    expect(row).not.toHaveProperty('is_normal');
     const del = await tech.json(`/api/reads/${readId}/marks/${id}?opId=${uuid()}`, 'DELETE');
     expect(del.status).toBe(200);
     expect(await liveMarks(readId)).toHaveLength(0);
@@ -106,7 +108,7 @@ describe('marks', () => {
     const row = (id: string) => rows.get(id)!;
     expect(rows.size).toBe(3);
     expect([Number(row(a).x), row(a).class_key, row(a).version]).toEqual([11, 'bent_coiled_tail', 2]);
-    expect([row(b).class_key, !!row(b).is_normal]).toEqual(['detached_head', false]);
+    expect(row(b).class_key).toBe('detached_head');
     expect([!!row(c).deleted, row(c).version]).toEqual([true, 2]);
     // Deleting a mark the server never had changes nothing and is not recorded.
     expect(await testDb()('mark_ops').where({ read_id: readId })).toHaveLength(5);

@@ -15,7 +15,10 @@ describe('users (lab manager)', () => {
     const mail = await waitForMail(email);
     expect(mail.text).toMatch(/\/invite\/[A-Za-z0-9_-]{40,}/);
     const audit = await testDb()('audit_log').where({ entity: 'user', entity_id: String(r.body.user.id), action: 'invite' }).first();
-    expect(audit).toBeTruthy();
+    // Who did it, what, and the before (none: a new account) and after.
+    const manager = await testDb()('users').where({ email: USERS.manager }).first('id');
+    expect(audit).toMatchObject({ user_id: manager.id, action: 'invite', entity: 'user', entity_id: String(r.body.user.id), before: null });
+    expect(typeof audit.after === 'string' ? JSON.parse(audit.after) : audit.after).toEqual({ email, name: 'Wren Applegarth', role: 'technician' });
   });
 
   it('refuses a duplicate e-mail with 409 and bad input with 422, writing nothing', async () => {

@@ -8,7 +8,6 @@ import {
   DEMO_SEASON,
   buildDemoScenario,
   expectedAbnormalShare,
-  mulberry32,
   type DemoCollection,
 } from '@/lib/demo/scenario';
 import { DEMO_USERS } from '@/lib/demo/users';
@@ -32,20 +31,6 @@ const daysAfterFever = (c: DemoCollection) =>
   Math.floor(c.collectedAt.getTime() / DAY_MS) - Date.parse(`${DEMO_FEVER.date}T00:00:00Z`) / DAY_MS;
 const mean = (xs: number[]) => xs.reduce((s, x) => s + x, 0) / xs.length;
 const decimals = (x: number) => (String(x).split('.')[1] ?? '').length;
-
-describe('mulberry32', () => {
-  it('is deterministic and stays in [0, 1)', () => {
-    const a = mulberry32(42);
-    const b = mulberry32(42);
-    const xs = Array.from({ length: 1000 }, () => a());
-    expect(Array.from({ length: 1000 }, () => b())).toEqual(xs);
-    expect(Math.min(...xs)).toBeGreaterThanOrEqual(0);
-    expect(Math.max(...xs)).toBeLessThan(1);
-    // mean of 1000 uniforms is 0.5 ± ~0.03 at 3 sd (computed: sd = sqrt(1/12/1000) ≈ 0.009)
-    expect(Math.abs(mean(xs) - 0.5)).toBeLessThan(0.03);
-    expect(mulberry32(43)()).not.toBe(mulberry32(42)());
-  });
-});
 
 describe('demo scenario', () => {
   it('is the same on every call, and depends on the seed', () => {

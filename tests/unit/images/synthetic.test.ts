@@ -2,24 +2,10 @@ import { createHash } from 'node:crypto';
 import sharp from 'sharp';
 import { describe, expect, it } from 'vitest';
 import { generateField } from '@/lib/synthetic/generate-field';
-import { mulberry32 } from '@/lib/synthetic/prng';
 import { SPERM_CLASS_KEYS } from '@/lib/synthetic/sperm';
 
 const sha = (b: Buffer) => createHash('sha256').update(b).digest('hex');
 const small = { width: 900, height: 700, micronsPerPixel: 0.25 } as const;
-
-describe('mulberry32', () => {
-  it('is deterministic and stays in [0, 1)', () => {
-    const a = mulberry32(42);
-    const b = mulberry32(42);
-    const xs = Array.from({ length: 1000 }, () => a());
-    expect(Array.from({ length: 1000 }, () => b())).toEqual(xs);
-    expect(xs.every((x) => x >= 0 && x < 1)).toBe(true);
-    // Mean of 1000 uniforms: 0.5 ± 3 × 0.289/√1000 ≈ ±0.027 (computed).
-    expect(Math.abs(xs.reduce((s, x) => s + x, 0) / xs.length - 0.5)).toBeLessThan(0.03);
-    expect(mulberry32(43)()).not.toBe(mulberry32(42)());
-  });
-});
 
 describe('generateField', () => {
   it('same seed → same cells and the same image bytes', async () => {

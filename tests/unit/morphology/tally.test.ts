@@ -1,6 +1,5 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_TARGET_CELLS, tallyMarks, type MorphologyClass, type TallyMark } from '@/lib/morphology/tally';
-import { wilsonInterval } from '@/lib/morphology/wilson';
 
 const classes: MorphologyClass[] = [
   { id: 'normal', name: 'Normal', group: 'normal', countsAsSperm: true },
@@ -36,7 +35,7 @@ describe('tallyMarks', () => {
     expect(t.nonSpermCounted).toBe(2);
     expect(t.normalCount).toBe(6);
     expect(t.abnormalCount).toBe(4);
-    // % normal = normal / cells counted = 6 / 10 (computed from the definition in REFERENCES.md)
+    // % normal = normal / cells counted = 6 / 10 (computed from the definition; common practice, docs/references.md)
     expect(t.pctNormal).toBeCloseTo(60, 12);
     expect(t.pctAbnormal).toBeCloseTo(40, 12);
   });
@@ -96,10 +95,20 @@ describe('tallyMarks', () => {
   });
 
   it('gives the Wilson 95 % interval on % normal, in %', () => {
-    // computed with wilsonInterval (Newcombe 1998, method 3) on 6/10
-    const w = wilsonInterval(6, 10)!;
-    expect(t.normalIntervalPct!.lower).toBeCloseTo(w.lower * 100, 12);
-    expect(t.normalIntervalPct!.upper).toBeCloseTo(w.upper * 100, 12);
+    // 81 normal of 263 sperm cells (with 4 round cells beside them, which must not count):
+    // 0.2553–0.3662 (Newcombe 1998, Stat Med 17:857–872, method 3; docs/references.md).
+    const w = tallyMarks(classes, [
+      ...repeat(81, { classId: 'normal', imageId: 'a' }),
+      ...repeat(182, { classId: 'midpiece', imageId: 'a' }),
+      ...repeat(4, { classId: 'round', imageId: 'a' }),
+    ]);
+    expect(w.normalIntervalPct!.lower).toBeCloseTo(25.53, 2);
+    expect(w.normalIntervalPct!.upper).toBeCloseTo(36.62, 2);
+    // 0 normal of 20: 0.0000–0.1611 (Newcombe 1998, method 3; docs/references.md).
+    const none = tallyMarks(classes, repeat(20, { classId: 'tail', imageId: 'a' }));
+    expect(none.normalIntervalPct!.lower).toBe(0);
+    expect(none.normalIntervalPct!.upper).toBeCloseTo(16.11, 2);
+    // The 6/10 read above: the interval brackets the point estimate.
     expect(t.normalIntervalPct!.lower).toBeLessThan(60);
     expect(t.normalIntervalPct!.upper).toBeGreaterThan(60);
   });

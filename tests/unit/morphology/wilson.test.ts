@@ -3,7 +3,7 @@ import { Z_95, wilsonInterval } from '@/lib/morphology/wilson';
 
 describe('wilsonInterval', () => {
   it('81/263 → 0.2553–0.3662', () => {
-    // Newcombe 1998, Stat Med 17:857–872, method 3 (Wilson score); check value from REFERENCES.md
+    // Newcombe 1998, Stat Med 17:857–872, method 3 (Wilson score); check value in docs/references.md
     const r = wilsonInterval(81, 263)!;
     expect(r.lower).toBeCloseTo(0.2553, 4);
     expect(r.upper).toBeCloseTo(0.3662, 4);
@@ -11,7 +11,7 @@ describe('wilsonInterval', () => {
   });
 
   it('0/20 → 0.0000–0.1611', () => {
-    // Newcombe 1998, Stat Med 17:857–872, method 3; check value from REFERENCES.md
+    // Newcombe 1998, Stat Med 17:857–872, method 3; check value in docs/references.md
     const r = wilsonInterval(0, 20)!;
     expect(r.lower).toBe(0);
     expect(r.upper).toBeCloseTo(0.1611, 4);

@@ -24,10 +24,10 @@ describe('semenTotals', () => {
       totalMotilityPct: 70,
       progressiveMotilityPct: 60,
     });
-    // 50 mL × 150 × 10^6/mL = 7.5 × 10^9 (REFERENCES.md computed example; total = volume ×
+    // 50 mL × 150 × 10^6/mL = 7.5 × 10^9 (computed example, docs/references.md; total = volume ×
     // concentration, Kavak et al. 2003, Reprod Domest Anim 38:167–169)
     expect(t.totalSpermBillion).toBeCloseTo(7.5, 12);
-    // 60 % progressive → 4.5 × 10^9 PMS (REFERENCES.md computed example)
+    // 60 % progressive → 4.5 × 10^9 PMS (computed example from Kavak et al. 2003 and Brinsko 2006; docs/references.md)
     expect(t.progressivelyMotileBillion).toBeCloseTo(4.5, 12);
     // 70 % of 7.5 = 5.25 × 10^9 (computed from total × % motile)
     expect(t.totalMotileBillion).toBeCloseTo(5.25, 12);
@@ -44,7 +44,7 @@ describe('semenTotals', () => {
       normalPct: 40,
     });
     // PMMN = PMS × % normal = 4.5 × 0.40 = 1.8 × 10^9 (computed from the PMMN definition,
-    // Society for Theriogenology wording as in REFERENCES.md)
+    // Society for Theriogenology wording; docs/references.md)
     expect(t.pmmnBillion).toBeCloseTo(1.8, 12);
   });
 
@@ -84,12 +84,12 @@ describe('semenTotals', () => {
 
 describe('insemDoses', () => {
   it('fills 9 doses of 0.5 × 10^9 from 4.5 × 10^9 PMS with nothing left', () => {
-    // 9 doses of 500 × 10^6 PMS, remainder 0 (REFERENCES.md computed example)
+    // 9 doses of 500 × 10^6 PMS, remainder 0 (computed example from Kavak et al. 2003 and Brinsko 2006; docs/references.md)
     expect(insemDoses({ availableBillion: 4.5, doseSizeBillion: 0.5 })).toEqual({ doses: 9, remainderBillion: 0 });
   });
 
   it('fills 4 doses of 1 × 10^9 with 0.5 × 10^9 left', () => {
-    // 4 doses of 1 × 10^9 PMS, remainder 0.5 × 10^9 (REFERENCES.md computed example)
+    // 4 doses of 1 × 10^9 PMS, remainder 0.5 × 10^9 (computed example from Kavak et al. 2003 and Brinsko 2006; docs/references.md)
     const r = insemDoses({ availableBillion: 4.5, doseSizeBillion: 1 });
     expect(r.doses).toBe(4);
     expect(r.remainderBillion).toBeCloseTo(0.5, 12);
@@ -143,7 +143,7 @@ describe('DOSE_DEFAULTS', () => {
   it('counts doses on the right basis', () => {
     const t = semenTotals({ volumeMl: 50, concentrationMillionPerMl: 150, totalMotilityPct: 70, progressiveMotilityPct: 60 });
     expect(spermOnBasisBillion(t, 'total')).toBeCloseTo(7.5, 12);
-    // cooled: 4.5 PMS / 1.0 → 4 doses, 0.5 left (REFERENCES.md computed example)
+    // cooled: 4.5 PMS / 1.0 → 4 doses, 0.5 left (computed example from Kavak et al. 2003 and Brinsko 2006; docs/references.md)
     expect(dosesFromTotals(t, DOSE_DEFAULTS.cooled)).toMatchObject({ doses: 4, basis: 'progressive' });
     // frozen: 7.5 total / 0.8 = 9.375 → 9 doses, 0.3 left (computed from the frozen default)
     const frozen = dosesFromTotals(t, DOSE_DEFAULTS.frozen);
@@ -155,7 +155,7 @@ describe('DOSE_DEFAULTS', () => {
 
 describe('breedingSoundness', () => {
   it('passes at or above 1 × 10^9 PMMN by default', () => {
-    // threshold 1 × 10^9 PMMN in the second ejaculate (Society for Theriogenology criterion, REFERENCES.md)
+    // threshold 1 × 10^9 PMMN in the second ejaculate (Society for Theriogenology criterion; docs/references.md)
     expect(BREEDING_SOUNDNESS_PMMN_THRESHOLD_BILLION).toBe(1);
     const pass = breedingSoundness({ secondEjaculatePmmnBillion: 1.8 });
     expect(pass.status).toBe('pass');

@@ -8,7 +8,7 @@ import { SemenInputError } from '@/lib/semen/errors';
 
 describe('concentrationFromChamber', () => {
   it('1:10, 50 sperm in 5 squares → 25 × 10^6/mL', () => {
-    // worked example, note on the WHO laboratory manual 5th ed. 2010, pp. 32 ff. (REFERENCES.md)
+    // worked example, note on the WHO laboratory manual 5th ed. 2010, pp. 32 ff. (docs/references.md)
     const r = concentrationFromChamber({ dilution: 10, squaresCounted: 5, counts: [50, 50] });
     expect(r.concentrationMillionPerMl).toBeCloseTo(25, 12);
     expect(r.perChamber).toEqual([25, 25]);
@@ -16,7 +16,7 @@ describe('concentrationFromChamber', () => {
   });
 
   it('1:20, 500 sperm in 5 squares → 500 × 10^6/mL', () => {
-    // worked example, note on the WHO laboratory manual 5th ed. 2010, pp. 32 ff. (REFERENCES.md)
+    // worked example, note on the WHO laboratory manual 5th ed. 2010, pp. 32 ff. (docs/references.md)
     const r = concentrationFromChamber({ dilution: 20, squaresCounted: 5, counts: [500, 500] });
     expect(r.concentrationMillionPerMl).toBeCloseTo(500, 12);
     expect(r.lowCount).toBe(false);

@@ -3,7 +3,7 @@ import { LAB_SETTINGS_DEFAULTS, mergeLabSettings } from '@/lib/settings/lab-sett
 import { soundnessForCollection, summariseCollection } from '@/lib/semen/summary';
 
 describe('summariseCollection', () => {
-  it('works out totals and doses at the lab dose sizes (REFERENCES.md computed example)', () => {
+  it('works out totals and doses at the lab dose sizes (computed example from Kavak et al. 2003 and Brinsko 2006, docs/references.md)', () => {
     // 50 mL × 150 × 10^6/mL = 7.5 × 10^9 (Kavak et al. 2003: total = volume × concentration); 60 % → 4.5 × 10^9 PMS;
     // 9 fresh doses of 0.5 × 10^9 PMS (Brinsko 2006), 4 cooled doses of 1 × 10^9 with 0.5 left, 9 frozen of 0.8 × 10^9 total with 0.3 left (computed).
     const s = summariseCollection({ volumeMl: 50, concentrationMillionPerMl: 150, totalMotilityPct: 70, progressiveMotilityPct: 60 }, LAB_SETTINGS_DEFAULTS, 80);

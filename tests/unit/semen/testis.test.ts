@@ -20,7 +20,7 @@ describe('testicular volume', () => {
   });
 
   it('10 × 6.5 × 7 cm → 238.1 mL; both testes 476.2 mL', () => {
-    // REFERENCES.md computed example from 0.5233 × L × W × H (Love et al. 1991)
+    // computed example from 0.5233 × L × W × H (Love, Garcia, Riera & Kenney 1991; docs/references.md)
     const each = ellipsoidVolumeMl(10, 6.5, 7);
     expect(each).toBeCloseTo(238.1, 1);
     expect(totalTesticularVolume(each, each)).toBeCloseTo(476.2, 1);
@@ -43,7 +43,7 @@ describe('testicular volume', () => {
 
 describe('predictedDailySpermOutputBillion', () => {
   it('476.2 mL → 10.67 × 10^9/day with the primary fit', () => {
-    // REFERENCES.md computed example: 0.024 × 476.2 − 0.76 = 10.67 (Love et al. 1991 as reported in later reviews)
+    // computed example: 0.024 × 476.2 − 0.76 = 10.67 (Love et al. 1991 as reported in later reviews; docs/references.md)
     const total = totalTesticularVolume(ellipsoidVolumeMl(10, 6.5, 7), ellipsoidVolumeMl(10, 6.5, 7));
     const p = predictedDailySpermOutputBillion(total);
     expect(p.billionPerDay).toBeCloseTo(10.67, 2);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { dateToWallTime, isTimeZone, labDay, labDayKey, timeZoneNames, wallTimeToDate } from '@/lib/time/lab-time';
+import { dateToWallTime, isTimeZone, labDay, labDayKey, labYear, timeZoneNames, wallTimeToDate } from '@/lib/time/lab-time';
 
 // Check values: summer time in the EU starts on the last Sunday of March and ends on the last
 // Sunday of October, both at 01:00 UTC (Directive 2000/84/EC of the European Parliament and of the
@@ -71,5 +71,16 @@ describe('lab clock', () => {
     expect(isTimeZone('')).toBe(false);
     expect(timeZoneNames()[0]).toBe('UTC');
     expect(timeZoneNames()).toContain('America/New_York');
+  });
+
+  it('gives the lab’s calendar year of an instant (the dashboard’s season)', () => {
+    // 31 Dec 2026, 20:00 in New York (EST, UTC−5) is already 1 Jan 2027 01:00 UTC.
+    const ny = labYear(new Date('2027-01-01T01:00:00Z'), 'America/New_York');
+    expect(ny.year).toBe(2026);
+    expect([iso(ny.start), iso(ny.end)]).toEqual(['2026-01-01T05:00:00.000Z', '2027-01-01T05:00:00.000Z']);
+    // London is on GMT at new year: the year starts at midnight UTC.
+    const london = labYear(new Date('2026-07-15T12:00:00Z'), 'Europe/London');
+    expect([london.year, iso(london.start), iso(london.end)]).toEqual([2026, '2026-01-01T00:00:00.000Z', '2027-01-01T00:00:00.000Z']);
+    expect(labYear(new Date('2026-12-31T23:59:59Z'), 'UTC').year).toBe(2026);
   });
 });

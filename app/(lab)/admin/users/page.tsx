@@ -1,5 +1,5 @@
 import { listUsers } from '@/db/queries/users';
-import { db } from '@/db/knex';
+import { clientOptions } from '@/db/queries/clients';
 import { requirePageUser } from '@/lib/auth/session';
 import { UsersManager } from './_components/users-manager';
 
@@ -7,7 +7,7 @@ export const metadata = { title: 'Users' };
 
 export default async function UsersPage() {
   const me = await requirePageUser(['lab_manager']);
-  const [users, clients] = await Promise.all([listUsers(), db('clients').select('id', 'name').orderBy('name')]);
+  const [users, clients] = await Promise.all([listUsers(), clientOptions()]);
   return (
     <div className="space-y-6">
       <div>

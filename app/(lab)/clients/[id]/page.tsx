@@ -4,6 +4,7 @@ import { notFound } from 'next/navigation';
 import { ClientForm } from '@/components/forms/client-form';
 import { getClient } from '@/db/queries/clients';
 import { StallionsTable } from '../../stallions/_components/stallions-table';
+import { nullIfNotFound } from '@/lib/api/errors';
 
 export const metadata = { title: 'Client' };
 
@@ -11,7 +12,7 @@ export default async function ClientPage({ params }: { params: Promise<{ id: str
   await requirePageUser(STAFF_ROLES);
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
-  const c = await getClient(Number(id)).catch(() => null);
+  const c = await nullIfNotFound(getClient(Number(id)));
   if (!c) notFound();
   return (
     <div className="space-y-6">

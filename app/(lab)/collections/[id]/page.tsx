@@ -1,13 +1,16 @@
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { collectionsAround, getCollection } from '@/db/queries/collections';
-import { morphologyForCollection } from '@/db/queries/reads';
+import { morphologyForCollection } from '@/db/queries/morphology';
 import { getLabSettings } from '@/db/queries/settings';
 import { MorphologySummary } from '@/components/reads/morphology-summary';
 import { StartReadButton } from '@/components/reads/start-read-button';
+import { nullIfNotFound } from '@/lib/api/errors';
 import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { FieldImages } from '@/components/images/gallery';
 import { requirePageUser } from '@/lib/auth/session';
+import { READ_KIND_LABELS } from '@/lib/reads/kinds';
+import { figuresBasis, readActionsFor } from '@/lib/reads/policy';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
 import { soundnessForCollection, summariseCollection } from '@/lib/semen/summary';
 import { OPTICS, PREPARATIONS } from '@/lib/validations/collection';
@@ -20,13 +23,12 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
   const user = await requirePageUser(STAFF_ROLES);
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
-  const c = await getCollection(Number(id)).catch(() => null);
+  const c = await nullIfNotFound(getCollection(user, Number(id)));
   if (!c) notFound();
-  const [settings, around, reads] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt)), morphologyForCollection(c.id)]);
-  // PMMN uses the settled read when there is one, else a submitted first read (said so on the page).
-  const basis = reads.find((r) => r.kind === 'settled' && r.status === 'submitted') ?? reads.find((r) => r.kind === 'first' && r.status === 'submitted');
-  const normalPct = basis?.pctNormal ?? null;
-  const firstRead = reads.find((r) => r.kind === 'first');
+  const [settings, around, reads] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt)), morphologyForCollection(user, c.id)]);
+  const basis = figuresBasis(reads);
+  const normalPct = basis?.read.morphology.pctNormal ?? null;
+  const actions = readActionsFor(user, reads.map((r) => ({ id: r.readId, kind: r.kind, status: r.status, readerId: r.readerId })));
   const s = summariseCollection(c, settings, normalPct);
   const bse = soundnessForCollection(
     c.id,
@@ -91,7 +93,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
                   <>
                     {billions(s.totals.pmmnBillion)}
                     <span className="block text-xs text-ink-faint">
-                      at {fmt(normalPct)} % normal from the {basis?.kind === 'settled' ? 'settled read' : 'first read (not yet checked by a second reader)'}
+                      at {fmt(normalPct)} % normal from the {basis?.basis === 'settled' ? 'settled read' : 'first read (not yet checked by a second reader)'}
                     </span>
                   </>
                 )}
@@ -128,9 +130,9 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
       <section aria-labelledby="morph-heading" className="space-y-3">
         <div className="flex flex-wrap items-center justify-between gap-3">
           <h2 id="morph-heading">Morphology</h2>
-          {READER_ROLES.includes(user.role) && (!firstRead || (firstRead.status === 'open' && firstRead.readerId === user.id)) && (
-            <StartReadButton collectionId={c.id} label={firstRead ? 'Continue first read' : 'Start first read'} />
-          )}
+          {actions.map((a) => (
+            <StartReadButton key={a.kind} collectionId={c.id} kind={a.kind} label={`${a.action === 'start' ? 'Start' : 'Continue'} ${READ_KIND_LABELS[a.kind].toLowerCase()}`} />
+          ))}
         </div>
         <MorphologySummary reads={reads} />
       </section>

@@ -6,6 +6,7 @@ import { useLabTimeZone } from '@/components/time/lab-clock';
 import { DataTable } from '@/components/ui/data-table';
 import type { Collection } from '@/db/queries/collections';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
+import { OPEN } from '@/lib/reads/kinds';
 
 const c = createColumnHelper<Collection>();
 /** The columns, with times on the lab's clock. */
@@ -26,7 +27,7 @@ const columnsFor = (timeZone: string) => [
     enableSorting: false,
     cell: (i) => {
       const f = i.getValue();
-      return f ? `${f.cells} cells · ${f.pctNormal == null ? '—' : `${fmt(f.pctNormal)} % normal`}${f.status === 'open' ? ' (in progress)' : ''}` : '—';
+      return f ? `${f.cells} cells · ${f.pctNormal == null ? '—' : `${fmt(f.pctNormal)} % normal`}${f.status === OPEN ? ' (in progress)' : ''}` : '—';
     },
   }),
   c.accessor('daysSincePrevious', { id: 'daysSincePrevious', header: 'Days since previous', enableSorting: false, cell: (i) => fmt(i.getValue()) }),

@@ -9,6 +9,7 @@ import { requirePageUser } from '@/lib/auth/session';
 import { billions, fmt, fmtDate } from '@/lib/format';
 import { compareOutput, ellipsoidVolumeMl, estimateActualDso, predictedDailySpermOutputBillion, scrotalWidthCheck, totalTesticularVolume } from '@/lib/semen/testis';
 import { CollectionsTable } from '../../collections/_components/collections-table';
+import { nullIfNotFound } from '@/lib/api/errors';
 
 export const metadata = { title: 'Stallion' };
 
@@ -16,7 +17,7 @@ export default async function StallionPage({ params }: { params: Promise<{ id: s
   const user = await requirePageUser(STAFF_ROLES);
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
-  const s = await getStallion(user, Number(id)).catch(() => null);
+  const s = await nullIfNotFound(getStallion(user, Number(id)));
   if (!s) notFound();
   const [measurements, timeline] = await Promise.all([listTestisMeasurements(s.id), collectionTimeline(s.id)]);
 

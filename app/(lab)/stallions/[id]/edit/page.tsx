@@ -3,6 +3,7 @@ import { StallionForm } from '@/components/forms/stallion-form';
 import { clientOptions } from '@/db/queries/clients';
 import { getStallion } from '@/db/queries/stallions';
 import { requirePageUser } from '@/lib/auth/session';
+import { nullIfNotFound } from '@/lib/api/errors';
 
 export const metadata = { title: 'Edit stallion' };
 
@@ -10,7 +11,7 @@ export default async function EditStallionPage({ params }: { params: Promise<{ i
   const user = await requirePageUser();
   const { id } = await params;
   if (!/^\d+$/.test(id)) notFound();
-  const s = await getStallion(user, Number(id)).catch(() => null);
+  const s = await nullIfNotFound(getStallion(user, Number(id)));
   if (!s) notFound();
   return (
     <div className="space-y-4">

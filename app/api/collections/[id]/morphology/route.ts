@@ -1,6 +1,6 @@
-import { morphologyForCollection } from '@/db/queries/reads';
+import { morphologyForCollection, morphologyJson } from '@/db/queries/morphology';
 import { route } from '@/lib/api/handler';
 import { STAFF_ROLES } from '@/lib/auth/roles';
 import { idParams } from '@/lib/validations/common';
 
-export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ params }) => ({ reads: await morphologyForCollection(params.id) }));
+export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ user, params }) => ({ reads: (await morphologyForCollection(user, params.id)).map(morphologyJson) }));

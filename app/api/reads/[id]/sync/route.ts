@@ -1,4 +1,4 @@
-import { syncMarks } from '@/db/queries/reads';
+import { syncMarks } from '@/db/queries/mark-sync';
 import { route } from '@/lib/api/handler';
 import { READER_ROLES } from '@/lib/auth/roles';
 import { readParams, syncSchema } from '@/lib/validations/mark';

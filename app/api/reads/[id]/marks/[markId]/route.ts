@@ -1,9 +1,9 @@
 import { NextResponse } from 'next/server';
-import { syncMarks } from '@/db/queries/reads';
+import { syncMarks } from '@/db/queries/mark-sync';
 import { ApiError } from '@/lib/api/errors';
 import { route } from '@/lib/api/handler';
 import { READER_ROLES } from '@/lib/auth/roles';
-import type { SendResult } from '@/lib/scoring/queue';
+import type { SendResult } from '@/lib/scoring/sync-contract';
 import { deleteMarkQuery, markParams, putMarkSchema } from '@/lib/validations/mark';
 
 // Single-mark forms of the sync route, with the same rules (idempotent by opId, versioned).

@@ -1,0 +1,5 @@
+import { NotFoundPanel } from '@/components/feedback/not-found-panel';
+
+export default function LabNotFound() {
+  return <NotFoundPanel home="/dashboard" homeLabel="Go to the dashboard" />;
+}
