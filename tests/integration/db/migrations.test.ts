@@ -2,16 +2,17 @@ import knexFactory, { type Knex } from 'knex';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { knexConfig } from '@/knexfile';
 
-// Migrates a scratch database up and down, checking data survives each step up.
+// Migrates a scratch database up and down, checking data survives each step up (as the schema's
+// owner, like scripts/db.ts: the app account may not create or alter tables).
 const NAME = `${process.env.DB_NAME ?? 'fieldmark'}_migrations`;
 let admin: Knex;
 let db: Knex;
 
 beforeAll(async () => {
-  admin = knexFactory(knexConfig());
+  admin = knexFactory(knexConfig(undefined, 'owner'));
   await admin.raw(`DROP DATABASE IF EXISTS \`${NAME}\``);
   await admin.raw(`CREATE DATABASE \`${NAME}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  db = knexFactory(knexConfig(NAME));
+  db = knexFactory(knexConfig(NAME, 'owner'));
 });
 
 afterAll(async () => {
