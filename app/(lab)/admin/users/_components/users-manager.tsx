@@ -135,7 +135,7 @@ export function UsersManager({ initialUsers, clients, meId }: { initialUsers: Us
                   <span className="inline-flex gap-2">
                     {u.active && (
                       <button type="button" className="btn-secondary py-1" onClick={() => sendLink(u)}>
-                        {u.invited ? 'Resend invitation' : 'Send password reset'}
+                        {u.invited ? 'Send a new invitation' : 'Send password reset'}
                         <span className="sr-only"> to {u.name}</span>
                       </button>
                     )}
