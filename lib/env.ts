@@ -23,6 +23,12 @@ const schema = z.object({
   MAIL_FROM: z.string().default('Fieldmark <no-reply@fieldmark.local>'),
   APP_URL: z.string().default('http://localhost:3000'),
   NEXTAUTH_SECRET: z.string().min(16).default('local-development-secret-change-me-in-production'),
+  // The candidate-detection worker every instance runs (lib/candidates/app-worker.ts).
+  CANDIDATE_WORKER: z.enum(['0', '1']).default('1'),
+  CANDIDATE_POLL_MS: z.coerce.number().int().min(50).max(600_000).default(2000),
+  CANDIDATE_LEASE_MS: z.coerce.number().int().min(1000).max(3_600_000).default(120_000),
+  CANDIDATE_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(20).default(3),
+  CANDIDATE_RETRY_MS: z.coerce.number().int().min(10).max(3_600_000).default(30_000),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -31,6 +31,8 @@ export type FieldImage = {
   createdAt: string;
   /** Cells marked on this image in each read (live marks only). */
   marks: { first: number; second: number; settled: number };
+  /** The search for candidate cells: its state, how many were found, why it failed. */
+  candidates: { status: 'waiting' | 'running' | 'done' | 'failed'; count: number; error: string | null };
   thumbUrl: string;
   displayUrl: string;
 };
@@ -53,6 +55,7 @@ function toImage(r: Record<string, any>): FieldImage {
     uploadedBy: r.uploaded_by_name,
     createdAt: new Date(r.created_at).toISOString(),
     marks: { first: Number(r.marks_first ?? 0), second: Number(r.marks_second ?? 0), settled: Number(r.marks_settled ?? 0) },
+    candidates: { status: r.candidate_status ?? 'failed', count: Number(r.candidate_count ?? 0), error: r.candidate_status ? (r.candidate_error ?? null) : 'Finding cells was never queued for this image.' },
     thumbUrl: `/api/images/${r.id}/thumb`,
     displayUrl: `/api/images/${r.id}/display`,
   };
@@ -64,9 +67,11 @@ const markCount = (kind: string) =>
 export async function listImages(collectionId: number): Promise<FieldImage[]> {
   const rows = await db('field_images as i')
     .join('users as u', 'u.id', 'i.uploaded_by')
+    .leftJoin('candidate_jobs as j', 'j.image_id', 'i.id')
     .where('i.collection_id', collectionId)
     .orderBy('i.position')
-    .select('i.*', 'u.name as uploaded_by_name', markCount('first'), markCount('second'), markCount('settled'));
+    .select('i.*', 'u.name as uploaded_by_name', markCount('first'), markCount('second'), markCount('settled'), 'j.status as candidate_status', 'j.error as candidate_error')
+    .select(db.raw('(select count(*) from candidates c where c.image_id = i.id) as candidate_count'));
   return rows.map(toImage);
 }
 

@@ -167,8 +167,9 @@ async function workingCopy(input: Buffer | string, scale: number, maxPixels: num
  */
 function withMats<T>(fn: (keep: <M extends { delete(): void }>(m: M) => M, free: (m: { delete(): void }) => void) => T): T {
   const mats = new Set<{ delete(): void }>();
+  let async = false;
   try {
-    return fn(
+    const out = fn(
       (m) => {
         mats.add(m);
         return m;
@@ -177,10 +178,23 @@ function withMats<T>(fn: (keep: <M extends { delete(): void }>(m: M) => M, free:
         if (mats.delete(m)) m.delete();
       },
     );
+    if (out instanceof Promise) {
+      async = true;
+      return out.finally(() => {
+        for (const m of mats) m.delete();
+      }) as T;
+    }
+    return out;
   } finally {
-    for (const m of mats) m.delete();
+    if (!async) for (const m of mats) m.delete();
   }
 }
+
+/**
+ * Lets other work on this process run between steps: detection shares the process with
+ * request handlers, and no step here should hold it for more than a few tens of ms.
+ */
+const breathe = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 export async function detectCandidates(input: Buffer | string, options: DetectOptions): Promise<DetectResult> {
   const t0 = performance.now();
@@ -199,7 +213,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
   const backgroundWindowPx = Math.max(3, odd((BACKGROUND_WINDOW_HEADS * headL) / BACKGROUND_SHRINK));
   const coreJoinPx = Math.max(3, odd(headL * CORE_JOIN_SHARE));
 
-  return withMats((keep, free) => {
+  return withMats(async (keep, free) => {
     // Grey level: the brightest of the three channels in a colour image. An eosin-stained
     // head is pink, dim in luminance (green carries most of it) but as bright as an
     // unstained one in red; on a grey phase-contrast field every channel is the same.
@@ -223,6 +237,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     cv.resize(coarse, bg, new cv.Size(w, h), 0, 0, cv.INTER_LINEAR);
     free(coarse);
 
+    await breathe();
     // The background + 1, so nothing is divided by a black background (a vignetted corner).
     const ones = keep(new cv.Mat(h, w, cv.CV_8UC1, new cv.Scalar(1)));
     cv.add(bg, ones, bg);
@@ -274,9 +289,11 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     if (polarity === 'dark') cv.bitwise_not(flat, flat);
     free(bg);
 
+    await breathe();
     const bin = keep(new cv.Mat());
     const thresholdValue = cv.threshold(flat, bin, 0, 255, cv.THRESH_BINARY | cv.THRESH_OTSU);
 
+    await breathe();
     // Closing with a small disc (fills vacuoles, which would hollow a head out), then
     // opening with a large one (drops midpieces and tails). The opening's erosion is a
     // threshold of the distance transform (pixels farther than r from the outside) and its
@@ -296,6 +313,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     // Half-thickness at every pixel of the opened mask: a head is the thickest part of a cell.
     cv.distanceTransform(opened, dist, cv.DIST_L2, cv.DIST_MASK_5);
 
+    await breathe();
     const labels = keep(new cv.Mat());
     const stats = keep(new cv.Mat());
     const centroids = keep(new cv.Mat());
@@ -318,6 +336,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     let split = 0;
 
     for (let i = 1; i < n; i++) {
+      if (i % 200 === 0) await breathe();
       const area = st[i * 5 + cv.CC_STAT_AREA];
       if (area < minArea || area > maxArea) continue;
       const rect = new cv.Rect(st[i * 5 + cv.CC_STAT_LEFT], st[i * 5 + cv.CC_STAT_TOP], st[i * 5 + cv.CC_STAT_WIDTH], st[i * 5 + cv.CC_STAT_HEIGHT]);
