@@ -66,6 +66,8 @@ export interface FieldCell {
   angle: number;
   /** Unstained (live) or eosin-stained (dead) when smeared. */
   live: boolean;
+  /** Set when the cell was laid across another one (the `overlap` option). */
+  overlapping?: true;
 }
 
 export interface Field {
@@ -358,7 +360,7 @@ export async function generateField(options: FieldOptions): Promise<Field> {
       if (across ? cells.some((c) => (c.x - x) ** 2 + (c.y - y) ** 2 < headGap * headGap) : placed.some((q) => clashes(p, q, gap))) continue;
       placed.push(p);
       const deg = (angle * 180) / Math.PI;
-      cells.push({ x: Math.round(x * 10) / 10, y: Math.round(y * 10) / 10, classKey, angle: Math.round(deg * 10) / 10, live });
+      cells.push({ x: Math.round(x * 10) / 10, y: Math.round(y * 10) / 10, classKey, angle: Math.round(deg * 10) / 10, live, ...(across ? { overlapping: true as const } : {}) });
       svgCells.push(
         `<g transform="translate(${x.toFixed(2)} ${y.toFixed(2)}) rotate(${deg.toFixed(3)}) scale(${pxPerMicron})">${drawing.svg}</g>`,
       );
