@@ -6,9 +6,8 @@
 //            polarity: on which side of the background the strong pixels lie;
 //            flattening: image / background (flat-field correction, so uneven
 //            illumination divides out); Otsu threshold; morphological closing with a small disc
-//            (fills vacuoles) and opening with a large one (drops tails and midpieces,
-//            thinner than the disc; done as thresholds of distance transforms, the same
-//            operation and far cheaper than a large kernel here);
+//            (fills vacuoles) and opening (drops tails and midpieces, thinner than its
+//            disc; the erosion as a threshold of the distance transform, see below);
 //            connected components; each component's moments (elongation) and distance
 //            transform (thickness).
 // Components whose area, elongation and thickness fit a head at the image's scale become
@@ -81,6 +80,8 @@ export interface DetectParams {
   thresholdValue: number;
   closingKernelPx: number;
   openingRadiusPx: number;
+  /** Dilation steps of the opening, each by an octagon of radius 2 px. */
+  openingDilateSteps: number;
   /** Component area: at least min; up to loneMax one head; up to max split into heads by their cores. */
   areaPx: { expected: number; min: number; loneMax: number; max: number };
   elongation: { expected: number; min: number; max: number };
@@ -209,6 +210,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
   const headW = (HEAD_WIDTH_UM / mpp) * scale;
   const expectedArea = (Math.PI / 4) * headL * headW;
   const openingRadiusPx = round((headW * OPENING_SHARE_OF_WIDTH) / 2, 2);
+  const dilateSteps = Math.max(1, Math.round(openingRadiusPx / 2));
   const closingKernelPx = Math.max(3, odd(2 * CLOSING_RADIUS_UM * (scale / mpp)));
   const backgroundWindowPx = Math.max(3, odd((BACKGROUND_WINDOW_HEADS * headL) / BACKGROUND_SHRINK));
   const coreJoinPx = Math.max(3, odd(headL * CORE_JOIN_SHARE));
@@ -295,21 +297,27 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
 
     await breathe();
     // Closing with a small disc (fills vacuoles, which would hollow a head out), then
-    // opening with a large one (drops midpieces and tails). The opening's erosion is a
-    // threshold of the distance transform (pixels farther than r from the outside) and its
-    // dilation one of the outside's distance transform (pixels within r of what is left):
-    // the same operations as with a disc kernel, and far cheaper than one this large here.
+    // opening (drops midpieces and tails, thinner than the opening). The opening's erosion
+    // is a threshold of the distance transform (pixels farther than r from the outside: a
+    // disc of radius r, exactly); its dilation is by an octagon of radius 2 per step (a 3 × 3
+    // cross, then a 3 × 3 square), close to the disc and several times cheaper than a disc
+    // kernel or a second distance transform in this build.
     const closingKernel = keep(cv.getStructuringElement(cv.MORPH_ELLIPSE, new cv.Size(closingKernelPx, closingKernelPx)));
     cv.morphologyEx(bin, bin, cv.MORPH_CLOSE, closingKernel);
     const dist = keep(new cv.Mat());
     const level = constant(openingRadiusPx, bin);
     cv.distanceTransform(bin, dist, cv.DIST_L2, cv.DIST_MASK_5);
-    cv.compare(dist, level, bin, cv.CMP_LE); // outside the eroded mask
-    cv.distanceTransform(bin, dist, cv.DIST_L2, cv.DIST_MASK_5);
     const opened = keep(new cv.Mat());
-    cv.compare(dist, level, opened, cv.CMP_LE);
+    cv.compare(dist, level, opened, cv.CMP_GT); // the eroded mask
+    const cross = keep(cv.getStructuringElement(cv.MORPH_CROSS, new cv.Size(3, 3)));
+    const square = keep(cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3)));
+    for (let k = 0; k < dilateSteps; k++) {
+      cv.dilate(opened, opened, cross);
+      cv.dilate(opened, opened, square);
+    }
     free(bin);
     free(level);
+    await breathe();
     // Half-thickness at every pixel of the opened mask: a head is the thickest part of a cell.
     cv.distanceTransform(opened, dist, cv.DIST_L2, cv.DIST_MASK_5);
 
@@ -412,6 +420,7 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
       thresholdValue,
       closingKernelPx,
       openingRadiusPx,
+      openingDilateSteps: dilateSteps,
       areaPx: { expected: round(expectedArea), min: round(minArea), loneMax: round(loneMaxArea), max: round(maxArea) },
       elongation: { expected: expectedElongation, min: ELONGATION_RANGE[0], max: ELONGATION_RANGE[1] },
       coreHalfWidthPx: { min: round(minCore), max: round(maxCore), split: round(headW * SPLIT_CORE) },
