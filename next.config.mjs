@@ -14,7 +14,8 @@ const securityHeaders = [
 const nextConfig = {
   // npm test builds into its own folder so it never clobbers the served demo build.
   distDir: process.env.NEXT_DIST_DIR || '.next',
-  serverExternalPackages: ['knex', 'mysql2', 'sharp', 'rate-limiter-flexible', 'nodemailer', '@react-pdf/renderer'],
+  // opencv.js is one 10 MB file with its WebAssembly inside: load it from node_modules, never bundle it.
+  serverExternalPackages: ['knex', 'mysql2', 'sharp', 'rate-limiter-flexible', 'nodemailer', '@react-pdf/renderer', '@techstark/opencv-js'],
   turbopack: { root: fileURLToPath(new URL('.', import.meta.url)) },
   poweredByHeader: false,
   experimental: {

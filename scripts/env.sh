@@ -8,7 +8,9 @@ PROFILE="${FIELDMARK_PROFILE:-dev}"
 export FIELDMARK_PROFILE="$PROFILE"
 if [ "$PROFILE" = test ]; then
   : "${DB_PORT:=3417}" "${S3_PORT:=4579}" "${SMTP_PORT:=1035}" "${MAIL_WEB_PORT:=1090}" "${PORT:=3100}" "${UPLOAD_MAX_MB:=8}"
-  export UPLOAD_MAX_MB
+  # Tests wait for detection jobs and their retries: look often, retry soon.
+  : "${CANDIDATE_POLL_MS:=200}" "${CANDIDATE_RETRY_MS:=300}"
+  export UPLOAD_MAX_MB CANDIDATE_POLL_MS CANDIDATE_RETRY_MS
 else
   : "${DB_PORT:=3407}" "${S3_PORT:=4569}" "${SMTP_PORT:=1025}" "${MAIL_WEB_PORT:=1080}" "${PORT:=3000}"
 fi

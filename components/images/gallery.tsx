@@ -9,7 +9,10 @@ import { CalibrateDialog } from './calibrate-dialog';
 import { UploadZone } from './upload-zone';
 
 export function FieldImages({ collectionId, canUpload, defaults }: { collectionId: number; canUpload: boolean; defaults: { magnification: number; optics: string } }) {
-  const { data, mutate, error } = useSWR<{ images: FieldImage[] }>(`/api/collections/${collectionId}/images`, swrFetcher);
+  const { data, mutate, error } = useSWR<{ images: FieldImage[] }>(`/api/collections/${collectionId}/images`, swrFetcher, {
+    // Look again while any image's cells are still being found.
+    refreshInterval: (latest) => (latest?.images.some((i) => i.candidates.status === 'waiting' || i.candidates.status === 'running') ? 2000 : 0),
+  });
   const [message, setMessage] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
   const [calibrating, setCalibrating] = useState<FieldImage | null>(null);
   const images = data?.images ?? [];
@@ -43,6 +46,7 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
               {img.micronsPerPixel ? `${fmt(img.micronsPerPixel, 4)} µm/px` : 'no scale set'}
               {img.magnification ? ` · ${img.magnification}×` : ''} · cells marked: {img.marks.first}
             </p>
+            <CandidateState image={img} onRerun={() => act(() => apiFetch(`/api/images/${img.id}/candidates`, { method: 'POST' }), `Finding cells again on ${img.fileName}.`)} />
             {canUpload && (
               <div className="flex flex-wrap gap-1">
                 <button type="button" className="btn-secondary px-2 py-1 text-xs" disabled={i === 0} onClick={() => act(() => apiFetch(`/api/images/${img.id}`, { method: 'PATCH', body: JSON.stringify({ move: 'up' }) }), 'Order changed.')}>
@@ -83,6 +87,33 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
             );
           }}
         />
+      )}
+    </div>
+  );
+}
+
+/** The search for candidate cells on one image: its state in words, and a button to search again. */
+function CandidateState({ image, onRerun }: { image: FieldImage; onRerun: () => void }) {
+  const c = image.candidates;
+  const text =
+    c.status === 'done'
+      ? `Cells found: ${c.count} candidate${c.count === 1 ? '' : 's'}`
+      : c.status === 'running'
+        ? 'Finding cells…'
+        : c.status === 'waiting'
+          ? c.error
+            ? `Finding cells: will try again (${c.error})`
+            : 'Finding cells: waiting'
+          : `Finding cells failed: ${c.error ?? 'no reason given'}`;
+  return (
+    <div className="flex items-start justify-between gap-2 text-xs">
+      <p aria-live="polite" className={c.status === 'failed' ? 'text-danger' : 'text-ink-soft'}>
+        {text}
+      </p>
+      {(c.status === 'done' || c.status === 'failed') && (
+        <button type="button" className="btn-secondary shrink-0 px-2 py-1 text-xs" onClick={onRerun}>
+          Find cells again<span className="sr-only"> on {image.fileName}</span>
+        </button>
       )}
     </div>
   );

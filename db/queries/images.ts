@@ -33,6 +33,8 @@ export type FieldImage = {
   createdAt: string;
   /** Cells marked on this image in each kind of read (live marks only). */
   marks: Record<ReadKind, number>;
+  /** The search for candidate cells: its state, how many were found, why it failed. */
+  candidates: { status: 'waiting' | 'running' | 'done' | 'failed'; count: number; error: string | null };
   thumbUrl: string;
   displayUrl: string;
 };
@@ -55,6 +57,7 @@ function toImage(r: Row, marks: Record<ReadKind, number>): FieldImage {
     uploadedBy: r.uploaded_by_name,
     createdAt: new Date(r.created_at).toISOString(),
     marks,
+    candidates: { status: r.candidate_status ?? 'failed', count: Number(r.candidate_count ?? 0), error: r.candidate_status ? (r.candidate_error ?? null) : 'Finding cells was never queued for this image.' },
     thumbUrl: `/api/images/${r.id}/thumb`,
     displayUrl: `/api/images/${r.id}/display`,
   };
@@ -62,7 +65,13 @@ function toImage(r: Row, marks: Record<ReadKind, number>): FieldImage {
 
 export async function listImages(collectionId: number): Promise<FieldImage[]> {
   const [rows, counts] = await Promise.all([
-    db('field_images as i').join('users as u', 'u.id', 'i.uploaded_by').where('i.collection_id', collectionId).orderBy('i.position').select('i.*', 'u.name as uploaded_by_name'),
+    db('field_images as i')
+      .join('users as u', 'u.id', 'i.uploaded_by')
+      .leftJoin('candidate_jobs as j', 'j.image_id', 'i.id')
+      .where('i.collection_id', collectionId)
+      .orderBy('i.position')
+      .select('i.*', 'u.name as uploaded_by_name', 'j.status as candidate_status', 'j.error as candidate_error')
+      .select(db.raw('(select count(*) from candidates c where c.image_id = i.id) as candidate_count')),
     // Live marks per image and kind of read, in one grouped query on the (image_id, read_id) index.
     db('marks as m')
       .join('field_images as i', 'i.id', 'm.image_id')

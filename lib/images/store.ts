@@ -8,6 +8,7 @@
 import { createReadStream } from 'node:fs';
 import type { Readable } from 'node:stream';
 import type { Knex } from 'knex';
+import { enqueueDetection } from '../candidates/jobs';
 import { ingestImage } from './ingest';
 import { sanitizeFileName, type ImageLimits } from './inspect';
 
@@ -85,6 +86,8 @@ export async function storeFieldImage(db: Knex, store: ObjectStore, input: Store
       };
       const [id] = await trx('field_images').insert(row);
       await trx('audit_log').insert({ user_id: input.uploadedBy, action: 'create', entity: 'field_image', entity_id: String(id), after: JSON.stringify({ ...row, sha256 }) });
+      // Candidate detection runs later on any instance; the upload only queues it, with the row.
+      await enqueueDetection(trx, id);
       return id as number;
     });
     return { ok: true, id, duplicate: false };

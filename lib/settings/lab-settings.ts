@@ -19,6 +19,7 @@ export const labSettingsSchema = z.object({
   targetCells: int('Target cell count', 50, 1000),
   spermatogenesisDays: int('Spermatogenesis', 30, 90),
   epididymalTransitDays: int('Epididymal transit', 0, 30),
+  unscaledMicronsPerPixel: num('Pixel size for images without a scale', 0.01, 5),
   timeZone: z.string().trim().refine(isTimeZone, 'Unknown time zone — choose one from the list (e.g. Europe/London, America/New_York).'),
 });
 export type LabSettings = z.infer<typeof labSettingsSchema>;
@@ -33,6 +34,7 @@ export const LAB_SETTINGS_DEFAULTS: LabSettings = {
   targetCells: DEFAULT_TARGET_CELLS,
   spermatogenesisDays: SPERMATOGENESIS_DAYS_DEFAULT,
   epididymalTransitDays: EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
+  unscaledMicronsPerPixel: 0.25,
   timeZone: DEFAULT_TIME_ZONE,
 };
 
@@ -47,6 +49,7 @@ export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone'>;
   { key: 'targetCells', label: 'Target cells per collection', unit: 'cells', source: 'Common practice: 100–200 per sample for stallions' },
   { key: 'spermatogenesisDays', label: 'Spermatogenesis', unit: 'days', source: 'About 57 days (Swierstra, Gebauer & Pickett 1974, from memory)' },
   { key: 'epididymalTransitDays', label: 'Epididymal transit', unit: 'days', source: 'Gebauer, Pickett & Swierstra 1974: at least 4.9, on average 7.5–11 days' },
+  { key: 'unscaledMicronsPerPixel', label: 'Pixel size for finding cells on images without a scale', unit: 'µm per pixel', source: 'Fieldmark default; set your camera’s calibration (stage micrometer), or set each image’s scale, then re-run the search on those images' },
 ];
 
 /** Stored values win over defaults; unknown or invalid stored keys fall back to the default. */

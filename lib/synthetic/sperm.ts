@@ -34,15 +34,28 @@ interface Palette {
   tail: string;
   droplet: string;
   halo: string;
+  /** Nuclear vacuoles: craters that let the background show through. */
+  vacuole: string;
 }
+
+/**
+ * How the cells look: 'stained' — eosin–nigrosin smear, bright (live) or pink (dead) cells
+ * on a dark field; 'phase' — phase contrast / DIC wet mount, dark cells with a bright halo on
+ * a light field (no stain, so live and dead look alike).
+ */
+export type CellLook = 'stained' | 'phase';
 
 // Live sperm keep the eosin out and stay white; dead ones take it up and show pink
 // heads (and a pinkish midpiece). Nigrosin gives the dark field.
 const LIVE: Palette = {
-  head: '#f4f0f3', headEdge: '#d9d1da', midpiece: '#ece6ec', tail: '#e2dbe3', droplet: '#f7f3f5', halo: '#b9aebd',
+  head: '#f4f0f3', headEdge: '#d9d1da', midpiece: '#ece6ec', tail: '#e2dbe3', droplet: '#f7f3f5', halo: '#b9aebd', vacuole: '#4a3f52',
 };
 const DEAD: Palette = {
-  head: '#e387ad', headEdge: '#c96a93', midpiece: '#e4a5c0', tail: '#dcc5d2', droplet: '#efc4d6', halo: '#b08ca2',
+  head: '#e387ad', headEdge: '#c96a93', midpiece: '#e4a5c0', tail: '#dcc5d2', droplet: '#efc4d6', halo: '#b08ca2', vacuole: '#4a3f52',
+};
+// Phase contrast: the dense head darkest, thinner parts less so, a light halo around all.
+const PHASE: Palette = {
+  head: '#3b3e44', headEdge: '#2a2c31', midpiece: '#54575d', tail: '#686b71', droplet: '#4b4e54', halo: '#f6f6f4', vacuole: '#a9abb0',
 };
 
 const f = (n: number) => (Math.round(n * 100) / 100).toString();
@@ -165,8 +178,8 @@ function straightTail(rnd: Random, length = between(rnd, 52, 58)) {
 }
 
 /** Draws one cell of the given class. */
-export function drawCell(rnd: Random, classKey: SpermClassKey, live: boolean): CellDrawing {
-  const p = live ? LIVE : DEAD;
+export function drawCell(rnd: Random, classKey: SpermClassKey, live: boolean, look: CellLook = 'stained'): CellDrawing {
+  const p = look === 'phase' ? PHASE : live ? LIVE : DEAD;
   const k = 1 + gaussish(rnd) * 0.03; // natural size spread
   const rx = 3 * k;
   const ry = 1.55 * k;
@@ -205,7 +218,7 @@ export function drawCell(rnd: Random, classKey: SpermClassKey, live: boolean): C
         for (let i = 0; i < n; i++) {
           const vx = between(rnd, -rx * 0.5, rx * 0.55);
           const vy = between(rnd, -ry * 0.45, ry * 0.45);
-          parts.push(`<circle cx="${f(vx)}" cy="${f(vy)}" r="${f(between(rnd, 0.3, 0.5))}" fill="#4a3f52" fill-opacity="0.75"/>`);
+          parts.push(`<circle cx="${f(vx)}" cy="${f(vy)}" r="${f(between(rnd, 0.3, 0.5))}" fill="${p.vacuole}" fill-opacity="0.75"/>`);
         }
       }
       break;

@@ -61,6 +61,7 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/images/[image]/thumb', roles: STAFF },
   { path: '/api/images/[image]/display', roles: STAFF },
   { path: '/api/images/[image]/original', roles: STAFF },
+  { path: '/api/images/[image]/candidates', roles: STAFF },
   { path: '/api/settings', roles: STAFF },
   { path: '/api/class-sets', roles: STAFF },
   { path: '/api/users', roles: ['lab_manager'] },

@@ -114,6 +114,17 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       }
     },
   },
+  '20261203000100_candidates.ts': {
+    tables: ['candidate_jobs', 'candidates'],
+    async write() {
+      // The migration queued a search for the image stored before it.
+      await db('candidates').insert({ image_id: ids.image, x: 12.5, y: 40, score: 0.875 });
+    },
+    async check() {
+      expect(await db('candidate_jobs').where({ image_id: ids.image }).first('status', 'attempts')).toEqual({ status: 'waiting', attempts: 0 });
+      expect((await db('candidates').where({ image_id: ids.image }).select('x', 'y', 'score')).map((c) => [Number(c.x), Number(c.y), Number(c.score)])).toEqual([[12.5, 40, 0.875]]);
+    },
+  },
   '20261203120000_invitation_purpose.ts': {
     tables: [],
     async write() {

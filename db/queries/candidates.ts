@@ -1,0 +1,49 @@
+import 'server-only';
+import { db } from '@/db/knex';
+import { writeAudit } from '@/db/queries/audit';
+import { notFound } from '@/lib/api/errors';
+import type { CurrentUser } from '@/lib/auth/session';
+import { enqueueDetection, type JobStatus } from '@/lib/candidates/jobs';
+
+export type ImageCandidates = {
+  status: JobStatus;
+  candidates: { x: number; y: number; score: number }[];
+  method: string | null;
+  params: unknown;
+  ms: number | null;
+  /** Why the last attempt failed (also while a retry waits). */
+  error: string | null;
+  attempts: number;
+};
+
+/** The image's candidates (image pixels) once found, and the job's state until then. */
+export async function getImageCandidates(imageId: number): Promise<ImageCandidates> {
+  const image = await db('field_images').where({ id: imageId }).first('id');
+  if (!image) throw notFound('The field image');
+  const job = await db('candidate_jobs').where({ image_id: imageId }).first();
+  if (!job) {
+    return { status: 'failed', candidates: [], method: null, params: null, ms: null, error: 'Finding cells was never queued for this image; ask for it again.', attempts: 0 };
+  }
+  const done = job.status === 'done';
+  const candidates = done ? await db('candidates').where({ image_id: imageId }).orderBy('id').select('x', 'y', 'score') : [];
+  return {
+    status: job.status,
+    candidates: candidates.map((c) => ({ x: Number(c.x), y: Number(c.y), score: Number(c.score) })),
+    method: done ? job.method : null,
+    params: done ? (typeof job.params === 'string' ? JSON.parse(job.params) : job.params) : null,
+    ms: done ? job.ms : null,
+    error: job.error ?? null,
+    attempts: job.attempts,
+  };
+}
+
+/** Queues the image for a new search; its previous candidates are cleared. */
+export async function rerunCandidates(actor: CurrentUser, imageId: number): Promise<void> {
+  await db.transaction(async (trx) => {
+    const image = await trx('field_images').where({ id: imageId }).forUpdate().first('id');
+    if (!image) throw notFound('The field image');
+    const before = await trx('candidate_jobs').where({ image_id: imageId }).first('status', 'method');
+    await enqueueDetection(trx, imageId, actor.id);
+    await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'candidates', entityId: imageId, before: before ?? null, after: { status: 'waiting', rerun: true } });
+  });
+}

@@ -1,0 +1,433 @@
+// Candidate cells on a field image: a point on each likely sperm head, where a reader
+// would place the mark. Classical image analysis, every step a library call:
+//   sharp  — orientation, and a downscale so a head is ~WORK_HEAD_LENGTH_PX long;
+//   OpenCV — grey level: the brightest channel (see below);
+//            background: median filter of a coarser copy, brought back to size;
+//            polarity: on which side of the background the strong pixels lie;
+//            flattening: image / background (flat-field correction, so uneven
+//            illumination divides out); Otsu threshold; morphological closing with a small disc
+//            (fills vacuoles) and opening (drops tails and midpieces, thinner than its
+//            disc; the erosion as a threshold of the distance transform, see below);
+//            connected components; each component's moments (elongation) and distance
+//            transform (thickness).
+// Components whose area, elongation and thickness fit a head at the image's scale become
+// candidates, each with a score in [0, 1]. A larger component (a head with a thick midpiece
+// still attached, heads touching) gives one candidate per head-thick core. Everything that
+// decides the result is returned in `params`, so a run can be repeated.
+import sharp from 'sharp';
+import { stretchLevels, to8Bit } from '@/lib/images/derive';
+import { loadOpenCv } from './opencv';
+
+/** Stallion sperm head, length × width in µm (from memory; lib/synthetic/sperm.ts draws the same). */
+export const HEAD_LENGTH_UM = 6;
+export const HEAD_WIDTH_UM = 3;
+
+/** The package doing the image analysis; a unit test checks it against the installed one. */
+export const OPENCV_PACKAGE = '@techstark/opencv-js@4.12.0-release.1';
+export const METHOD = 'flatfield-otsu-opening-components v1';
+
+export type Polarity = 'bright' | 'dark';
+
+export interface DetectOptions {
+  /** The image's scale; for an image without one, the lab's setting for unscaled images. */
+  micronsPerPixel: number;
+  /** Where the scale came from, recorded with the result. */
+  scaleSource?: 'image' | 'lab setting';
+  /** Use this polarity instead of detecting it. */
+  polarity?: Polarity;
+  /** Safety net handed to sharp (pixels). */
+  maxPixels?: number;
+}
+
+export interface Candidate {
+  /** Image pixels in the marks' frame (pixel i spans [i, i + 1]), orientation applied. */
+  x: number;
+  y: number;
+  /** How head-like, 0–1. */
+  score: number;
+}
+
+export interface DetectParams {
+  library: string;
+  opencv: string;
+  sharp: string;
+  micronsPerPixel: number;
+  scaleSource: 'image' | 'lab setting';
+  headLengthUm: number;
+  headWidthUm: number;
+  imageWidth: number;
+  imageHeight: number;
+  /** Working copy: size, scale against the image, and sharp's resampling kernel. */
+  workWidth: number;
+  workHeight: number;
+  workScale: number;
+  resizeKernel: string;
+  /** How the grey level was taken: the brightest channel of a colour image, or the one channel. */
+  grey: 'max of R, G, B' | 'single channel';
+  /** Median window in the coarse copy, which is backgroundShrink times smaller again. */
+  backgroundWindowPx: number;
+  backgroundShrink: number;
+  polarity: Polarity;
+  polarityDetected: boolean;
+  /** Pixels beyond ±polaritySigmas × backgroundNoise of the background on each side, in a half-size copy. */
+  polarityCounts: { bright: number; dark: number };
+  polaritySigmas: number;
+  /** Standard deviation of image / background in the half-size copy, after sigma clipping. */
+  backgroundNoise: number;
+  /** Flattened copy: ratioScale × image / (background + 1), inverted for dark cells. */
+  ratioScale: number;
+  threshold: 'otsu';
+  thresholdValue: number;
+  closingKernelPx: number;
+  openingRadiusPx: number;
+  /** Dilation steps of the opening, each by an octagon of radius 2 px. */
+  openingDilateSteps: number;
+  /** Component area: at least min; up to loneMax one head; up to max split into heads by their cores. */
+  areaPx: { expected: number; min: number; loneMax: number; max: number };
+  elongation: { expected: number; min: number; max: number };
+  /** Half-thickness at a head's thickest point, and the thickness that marks a head inside a larger component. */
+  coreHalfWidthPx: { min: number; max: number; split: number };
+  coreJoinKernelPx: number;
+  components: number;
+  /** Components that gave more than one candidate. */
+  split: number;
+}
+
+export interface DetectResult {
+  candidates: Candidate[];
+  method: string;
+  params: DetectParams;
+  ms: number;
+}
+
+/** A head about this many pixels long in the working copy: enough for its shape, cheap to analyse. */
+export const WORK_HEAD_LENGTH_PX = 12;
+/** Small heads are enlarged at most this much (finer morphology steps; beyond it the copy grows too big). */
+const MAX_UPSCALE = 1.5;
+/** sharp's resampling kernel for the working copy: a linear kernel widened by the reduction averages grain away. */
+const RESIZE_KERNEL = 'linear';
+/** Background window, in head lengths: much larger than a head, smaller than lighting changes. */
+const BACKGROUND_WINDOW_HEADS = 5;
+/** The median runs on a copy this many times coarser again (its cost grows with the window). */
+const BACKGROUND_SHRINK = 8;
+/** How far from the background, in multiples of its noise, a pixel counts in the polarity vote. */
+const POLARITY_SIGMAS = 5;
+/** Opening disc diameter as a share of the head width: removes tails (~0.6 µm) and midpieces (~1 µm). */
+const OPENING_SHARE_OF_WIDTH = 0.75;
+/** Closing disc radius, µm: fills nuclear vacuoles (about 0.6–1 µm across) inside a head. The kernel is at least 3 px. */
+const CLOSING_RADIUS_UM = 0.6;
+/** Accepted area of one head, in expected head areas (an ellipse of HEAD_LENGTH × HEAD_WIDTH). */
+const AREA_RANGE = [0.8, 2.6] as const;
+const ELONGATION_RANGE = [1.25, 3.8] as const;
+/** Larger components than this (in expected head areas) are clumps, not cells. */
+const CLUSTER_AREA_MAX = 12;
+/** Half-thickness at a head's thickest point (distance transform), as a share of head width. */
+const CORE_RANGE = [0.45, 1.15] as const;
+/** In a larger component, parts at least this thick (share of head width) are taken as heads. */
+const SPLIT_CORE = 0.5;
+/** Pieces of one core closer than this share of a head length are joined. */
+const CORE_JOIN_SHARE = 0.35;
+
+const odd = (n: number) => (Math.round(n) % 2 === 1 ? Math.round(n) : Math.round(n) + 1);
+const round = (n: number, d = 2) => Math.round(n * 10 ** d) / 10 ** d;
+
+/** Greyscale working copy at `scale`. 16-bit images are stretched to 8 bits (cameras fill few of their bits). */
+async function workingCopy(input: Buffer | string, scale: number, maxPixels: number | undefined) {
+  const limitInputPixels = maxPixels ?? true;
+  const meta = await sharp(input, { limitInputPixels }).metadata();
+  const swap = (meta.orientation ?? 1) >= 5;
+  const width = swap ? meta.height! : meta.width!;
+  const height = swap ? meta.width! : meta.height!;
+  const workWidth = Math.max(1, Math.round(width * scale));
+  const workHeight = Math.max(1, Math.round(height * scale));
+  const deep = meta.depth === 'ushort' || meta.depth === 'short';
+  const pipeline = sharp(input, { limitInputPixels, failOn: 'truncated' });
+  // Only when the file says so: rotate() costs a copy of the image even for orientation 1.
+  if ((meta.orientation ?? 1) !== 1) pipeline.rotate();
+  pipeline.resize(workWidth, workHeight, { fit: 'fill', kernel: RESIZE_KERNEL });
+  let pixels: Uint8Array;
+  let channels: 1 | 3 = 1;
+  if (deep) {
+    const data = await pipeline.toColourspace('grey16').raw({ depth: 'ushort' }).toBuffer();
+    const samples = data.byteOffset % 2 === 0 ? new Uint16Array(data.buffer, data.byteOffset, data.length / 2) : new Uint16Array(Uint8Array.from(data).buffer);
+    pixels = to8Bit(samples, stretchLevels(samples));
+  } else if ((meta.channels ?? 3) - (meta.hasAlpha ? 1 : 0) >= 3) {
+    pixels = await pipeline.removeAlpha().toColourspace('srgb').raw().toBuffer();
+    channels = 3;
+  } else {
+    pixels = await pipeline.toColourspace('b-w').raw().toBuffer();
+  }
+  if (pixels.length !== workWidth * workHeight * channels) throw new Error('The working copy came out with an unexpected size.');
+  return { width, height, workWidth, workHeight, pixels, channels };
+}
+
+/**
+ * Runs `fn` with a `keep` that registers Mats and a `free` that deletes one early; every
+ * Mat still registered is deleted at the end, whatever happens (OpenCV's memory is not
+ * garbage-collected).
+ */
+function withMats<T>(fn: (keep: <M extends { delete(): void }>(m: M) => M, free: (m: { delete(): void }) => void) => T): T {
+  const mats = new Set<{ delete(): void }>();
+  let async = false;
+  try {
+    const out = fn(
+      (m) => {
+        mats.add(m);
+        return m;
+      },
+      (m) => {
+        if (mats.delete(m)) m.delete();
+      },
+    );
+    if (out instanceof Promise) {
+      async = true;
+      return out.finally(() => {
+        for (const m of mats) m.delete();
+      }) as T;
+    }
+    return out;
+  } finally {
+    if (!async) for (const m of mats) m.delete();
+  }
+}
+
+/**
+ * Lets other work on this process run between steps: detection shares the process with
+ * request handlers, and no step here should hold it for more than a few tens of ms.
+ */
+const breathe = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+export async function detectCandidates(input: Buffer | string, options: DetectOptions): Promise<DetectResult> {
+  const t0 = performance.now();
+  const mpp = options.micronsPerPixel;
+  if (!(mpp > 0 && Number.isFinite(mpp))) throw new RangeError('micronsPerPixel must be a positive number.');
+  const scale = Math.min(MAX_UPSCALE, WORK_HEAD_LENGTH_PX / (HEAD_LENGTH_UM / mpp));
+  const [{ cv }, work] = await Promise.all([loadOpenCv(), workingCopy(input, scale, options.maxPixels)]);
+  const { workWidth: w, workHeight: h } = work;
+  const sx = work.width / w; // exact per axis after rounding the working size
+  const sy = work.height / h;
+  const headL = (HEAD_LENGTH_UM / mpp) * scale;
+  const headW = (HEAD_WIDTH_UM / mpp) * scale;
+  const expectedArea = (Math.PI / 4) * headL * headW;
+  const openingRadiusPx = round((headW * OPENING_SHARE_OF_WIDTH) / 2, 2);
+  const dilateSteps = Math.max(1, Math.round(openingRadiusPx / 2));
+  const closingKernelPx = Math.max(3, odd(2 * CLOSING_RADIUS_UM * (scale / mpp)));
+  const backgroundWindowPx = Math.max(3, odd((BACKGROUND_WINDOW_HEADS * headL) / BACKGROUND_SHRINK));
+  const coreJoinPx = Math.max(3, odd(headL * CORE_JOIN_SHARE));
+
+  return withMats(async (keep, free) => {
+    // Grey level: the brightest of the three channels in a colour image. An eosin-stained
+    // head is pink, dim in luminance (green carries most of it) but as bright as an
+    // unstained one in red; on a grey phase-contrast field every channel is the same.
+    let src = keep(new cv.Mat(h, w, work.channels === 3 ? cv.CV_8UC3 : cv.CV_8UC1));
+    src.data.set(work.pixels);
+    if (work.channels === 3) {
+      const planes = keep(new cv.MatVector());
+      cv.split(src, planes);
+      free(src);
+      src = keep(new cv.Mat());
+      cv.max(planes.get(0), planes.get(1), src);
+      cv.max(src, planes.get(2), src);
+      free(planes);
+    }
+
+    // Background: median of a coarse copy (robust to the cells on it), brought back to size.
+    const coarse = keep(new cv.Mat());
+    cv.resize(src, coarse, new cv.Size(Math.max(1, Math.round(w / BACKGROUND_SHRINK)), Math.max(1, Math.round(h / BACKGROUND_SHRINK))), 0, 0, cv.INTER_AREA);
+    cv.medianBlur(coarse, coarse, backgroundWindowPx);
+    const bg = keep(new cv.Mat());
+    cv.resize(coarse, bg, new cv.Size(w, h), 0, 0, cv.INTER_LINEAR);
+    free(coarse);
+
+    await breathe();
+    // The background + 1, so nothing is divided by a black background (a vignetted corner).
+    const ones = keep(new cv.Mat(h, w, cv.CV_8UC1, new cv.Scalar(1)));
+    cv.add(bg, ones, bg);
+    free(ones);
+
+    // Polarity: cells (heads, midpieces, tails) are the strong pixels on one side of the
+    // background; "strong" is beyond POLARITY_SIGMAS × the background's own noise, measured
+    // after one round of sigma clipping so the cells do not inflate it. On a half-size copy
+    // of image / background − 1 (a quarter of the work; the vote is the same).
+    // (Comparisons against a constant image give 8-bit masks directly; converting float
+    // images to 8 bits is several times slower in this build.)
+    const halfSize = new cv.Size(Math.max(1, Math.round(w / 2)), Math.max(1, Math.round(h / 2)));
+    const half = keep(new cv.Mat());
+    const halfBg = keep(new cv.Mat());
+    cv.resize(src, half, halfSize, 0, 0, cv.INTER_AREA);
+    cv.resize(bg, halfBg, halfSize, 0, 0, cv.INTER_AREA);
+    half.convertTo(half, cv.CV_32F);
+    halfBg.convertTo(halfBg, cv.CV_32F);
+    cv.divide(half, halfBg, half);
+    free(halfBg);
+    const constant = (v: number, like: { rows: number; cols: number }) => keep(new cv.Mat(like.rows, like.cols, cv.CV_32F, new cv.Scalar(v)));
+    const mean = keep(new cv.Mat());
+    const sd = keep(new cv.Mat());
+    cv.meanStdDev(half, mean, sd);
+    const centre = mean.data64F[0];
+    const quiet = keep(new cv.Mat());
+    const low = constant(centre - 3 * sd.data64F[0], half);
+    const high = constant(centre + 3 * sd.data64F[0], half);
+    cv.inRange(half, low, high, quiet);
+    cv.meanStdDev(half, mean, sd, quiet);
+    const noise = Math.max(sd.data64F[0], 0.005);
+    const strong = POLARITY_SIGMAS * noise;
+    low.setTo(new cv.Scalar(1 - strong));
+    high.setTo(new cv.Scalar(1 + strong));
+    cv.compare(half, high, quiet, cv.CMP_GT);
+    const bright = cv.countNonZero(quiet);
+    cv.compare(half, low, quiet, cv.CMP_LT);
+    const dark = cv.countNonZero(quiet);
+    for (const m of [half, quiet, low, high, mean, sd]) free(m);
+    const polarity: Polarity = options.polarity ?? (bright >= dark ? 'bright' : 'dark');
+
+    // Flattened: ratioScale × image / background, so a dim corner's cells count as much as
+    // the centre's (flat-field correction); inverted for dark cells, so cells are bright.
+    // Bright cells: background at 64, a head (~3× the background) near the top. Dark cells:
+    // background at 255 − 200 = 55, a head (~0.4×) at ~175.
+    const ratioScale = polarity === 'bright' ? 64 : 200;
+    const flat = keep(new cv.Mat());
+    cv.divide(src, bg, flat, ratioScale);
+    if (polarity === 'dark') cv.bitwise_not(flat, flat);
+    free(bg);
+
+    await breathe();
+    const bin = keep(new cv.Mat());
+    const thresholdValue = cv.threshold(flat, bin, 0, 255, cv.THRESH_BINARY | cv.THRESH_OTSU);
+
+    await breathe();
+    // Closing with a small disc (fills vacuoles, which would hollow a head out), then
+    // opening (drops midpieces and tails, thinner than the opening). The opening's erosion
+    // is a threshold of the distance transform (pixels farther than r from the outside: a
+    // disc of radius r, exactly); its dilation is by an octagon of radius 2 per step (a 3 × 3
+    // cross, then a 3 × 3 square), close to the disc and several times cheaper than a disc
+    // kernel or a second distance transform in this build.
+    const closingKernel = keep(cv.getStructuringElement(cv.MORPH_ELLIPSE, new cv.Size(closingKernelPx, closingKernelPx)));
+    cv.morphologyEx(bin, bin, cv.MORPH_CLOSE, closingKernel);
+    const dist = keep(new cv.Mat());
+    const level = constant(openingRadiusPx, bin);
+    cv.distanceTransform(bin, dist, cv.DIST_L2, cv.DIST_MASK_5);
+    const opened = keep(new cv.Mat());
+    cv.compare(dist, level, opened, cv.CMP_GT); // the eroded mask
+    const cross = keep(cv.getStructuringElement(cv.MORPH_CROSS, new cv.Size(3, 3)));
+    const square = keep(cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3)));
+    for (let k = 0; k < dilateSteps; k++) {
+      cv.dilate(opened, opened, cross);
+      cv.dilate(opened, opened, square);
+    }
+    free(bin);
+    free(level);
+    await breathe();
+    // Half-thickness at every pixel of the opened mask: a head is the thickest part of a cell.
+    cv.distanceTransform(opened, dist, cv.DIST_L2, cv.DIST_MASK_5);
+
+    await breathe();
+    const labels = keep(new cv.Mat());
+    const stats = keep(new cv.Mat());
+    const centroids = keep(new cv.Mat());
+    const n = cv.connectedComponentsWithStats(opened, labels, stats, centroids, 8, cv.CV_32S);
+    // Copies: a view into OpenCV's memory goes stale when a later allocation grows it.
+    const st = stats.data32S.slice();
+    const ce = centroids.data64F.slice();
+
+    const minArea = expectedArea * AREA_RANGE[0];
+    const loneMaxArea = expectedArea * AREA_RANGE[1];
+    const maxArea = expectedArea * CLUSTER_AREA_MAX;
+    const minCore = headW * CORE_RANGE[0];
+    const maxCore = headW * CORE_RANGE[1];
+    const expectedElongation = HEAD_LENGTH_UM / HEAD_WIDTH_UM;
+    const fit = (value: number, expected: number, spread: number) => Math.exp(-0.5 * (Math.log(value / expected) / spread) ** 2);
+    const standsOut = (mean: number) => Math.min(1, (2 * Math.max(0, mean - thresholdValue)) / Math.max(1, 255 - thresholdValue));
+    const coreJoin = keep(cv.getStructuringElement(cv.MORPH_ELLIPSE, new cv.Size(coreJoinPx, coreJoinPx)));
+    const candidates: Candidate[] = [];
+    const add = (x: number, y: number, score: number) => candidates.push({ x: round((x + 0.5) * sx), y: round((y + 0.5) * sy), score: round(score, 3) });
+    let split = 0;
+
+    for (let i = 1; i < n; i++) {
+      if (i % 200 === 0) await breathe();
+      const area = st[i * 5 + cv.CC_STAT_AREA];
+      if (area < minArea || area > maxArea) continue;
+      const rect = new cv.Rect(st[i * 5 + cv.CC_STAT_LEFT], st[i * 5 + cv.CC_STAT_TOP], st[i * 5 + cv.CC_STAT_WIDTH], st[i * 5 + cv.CC_STAT_HEIGHT]);
+      withMats((own) => {
+        const mask = own(new cv.Mat());
+        cv.compare(own(labels.roi(rect)), own(new cv.Mat(rect.height, rect.width, cv.CV_32S, new cv.Scalar(i))), mask, cv.CMP_EQ);
+        const m = cv.moments(mask, true);
+        // Elongation: axis ratio of the component's equivalent ellipse (second central moments).
+        const a = m.mu20 / m.m00;
+        const c = m.mu02 / m.m00;
+        const b = m.mu11 / m.m00;
+        const root = Math.sqrt(((a - c) / 2) ** 2 + b * b);
+        const elongation = Math.sqrt(((a + c) / 2 + root) / Math.max((a + c) / 2 - root, 1e-6));
+        const distRoi = own(dist.roi(rect));
+        const core = cv.minMaxLoc(distRoi, mask).maxVal;
+        const contrast = standsOut(cv.mean(own(flat.roi(rect)), mask)[0]);
+
+        if (area <= loneMaxArea && elongation <= ELONGATION_RANGE[1]) {
+          // One head on its own: its centroid.
+          if (elongation < ELONGATION_RANGE[0] || core < minCore || core > maxCore) return;
+          add(ce[i * 2], ce[i * 2 + 1], fit(area, expectedArea * 1.5, 0.6) * fit(elongation, expectedElongation, 0.4) * (0.5 + 0.5 * contrast));
+          return;
+        }
+        // Longer or larger: a head with a thick midpiece or a droplet still attached, or
+        // heads touching. Each part thick enough to be a head gives one candidate, at its
+        // thickest point.
+        const cores = own(new cv.Mat());
+        cv.threshold(distRoi, cores, headW * SPLIT_CORE, 255, cv.THRESH_BINARY);
+        cores.convertTo(cores, cv.CV_8U);
+        // A wide head's core can come out ragged, in pieces: join pieces closer than the kernel.
+        cv.dilate(cores, cores, coreJoin);
+        cv.bitwise_and(cores, mask, cores);
+        const coreLabels = own(new cv.Mat());
+        const k = cv.connectedComponents(cores, coreLabels, 8, cv.CV_32S);
+        if (k > 2) split++;
+        for (let j = 1; j < k; j++) {
+          const coreMask = own(new cv.Mat());
+          cv.compare(coreLabels, own(new cv.Mat(rect.height, rect.width, cv.CV_32S, new cv.Scalar(j))), coreMask, cv.CMP_EQ);
+          const peak = cv.minMaxLoc(distRoi, coreMask);
+          if (peak.maxVal > maxCore) continue;
+          add(rect.x + peak.maxLoc.x, rect.y + peak.maxLoc.y, 0.6 * fit(peak.maxVal, headW * 0.63, 0.3) * (0.5 + 0.5 * contrast));
+        }
+      });
+    }
+    // Reading order: row by row (bands of 1.5 head lengths), left to right, like a stage scan.
+    const band = (HEAD_LENGTH_UM / mpp) * 1.5;
+    candidates.sort((p, q) => Math.floor(p.y / band) - Math.floor(q.y / band) || p.x - q.x);
+
+    const params: DetectParams = {
+      library: OPENCV_PACKAGE,
+      opencv: /OpenCV ([\d.]+)/.exec(cv.getBuildInformation())?.[1] ?? 'unknown',
+      sharp: sharp.versions.sharp ?? 'unknown',
+      micronsPerPixel: mpp,
+      scaleSource: options.scaleSource ?? 'image',
+      headLengthUm: HEAD_LENGTH_UM,
+      headWidthUm: HEAD_WIDTH_UM,
+      imageWidth: work.width,
+      imageHeight: work.height,
+      workWidth: w,
+      workHeight: h,
+      workScale: round(scale, 5),
+      resizeKernel: RESIZE_KERNEL,
+      grey: work.channels === 3 ? 'max of R, G, B' : 'single channel',
+      backgroundWindowPx,
+      backgroundShrink: BACKGROUND_SHRINK,
+      polarity,
+      polarityDetected: options.polarity === undefined,
+      polarityCounts: { bright, dark },
+      polaritySigmas: POLARITY_SIGMAS,
+      backgroundNoise: round(noise, 4),
+      ratioScale,
+      threshold: 'otsu',
+      thresholdValue,
+      closingKernelPx,
+      openingRadiusPx,
+      openingDilateSteps: dilateSteps,
+      areaPx: { expected: round(expectedArea), min: round(minArea), loneMax: round(loneMaxArea), max: round(maxArea) },
+      elongation: { expected: expectedElongation, min: ELONGATION_RANGE[0], max: ELONGATION_RANGE[1] },
+      coreHalfWidthPx: { min: round(minCore), max: round(maxCore), split: round(headW * SPLIT_CORE) },
+      coreJoinKernelPx: coreJoinPx,
+      components: n - 1,
+      split,
+    };
+    return { candidates, method: METHOD, params, ms: Math.round(performance.now() - t0) };
+  });
+}
