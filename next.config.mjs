@@ -4,7 +4,7 @@ import { fileURLToPath } from 'node:url';
 const nextConfig = {
   // npm test builds into its own folder so it never clobbers the served demo build.
   distDir: process.env.NEXT_DIST_DIR || '.next',
-  serverExternalPackages: ['knex', 'mysql2', 'sharp', 'rate-limiter-flexible', 'nodemailer', '@react-pdf/renderer'],
+  serverExternalPackages: ['knex', 'mysql2', 'sharp', 'rate-limiter-flexible', 'nodemailer', '@react-pdf/renderer', 'exceljs', 'csv-stringify'],
   turbopack: { root: fileURLToPath(new URL('.', import.meta.url)) },
   poweredByHeader: false,
   experimental: {
