@@ -1,15 +1,19 @@
 import type { Knex } from 'knex';
 import { env } from './lib/env';
 
-export function knexConfig(database?: string): Knex.Config {
+/**
+ * The app connects as DB_USER, which may read and write rows but not alter or drop tables, nor
+ * change or remove audit rows; migrations and seeds connect as the schema's owner (scripts/db.ts).
+ */
+export function knexConfig(database?: string, account: 'app' | 'owner' = 'app'): Knex.Config {
   const e = env();
   return {
     client: 'mysql2',
     connection: {
       host: e.DB_HOST,
       port: e.DB_PORT,
-      user: e.DB_USER,
-      password: e.DB_PASSWORD,
+      user: account === 'owner' ? e.DB_OWNER_USER : e.DB_USER,
+      password: account === 'owner' ? e.DB_OWNER_PASSWORD : e.DB_PASSWORD,
       database: database ?? e.DB_NAME,
       charset: 'utf8mb4',
       timezone: 'Z',
@@ -26,4 +30,5 @@ export function knexConfig(database?: string): Knex.Config {
   };
 }
 
-export default knexConfig();
+// The knex CLI migrates, so it is the owner.
+export default knexConfig(undefined, 'owner');

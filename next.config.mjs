@@ -1,5 +1,15 @@
 import { fileURLToPath } from 'node:url';
 
+// On every response, static files included (tests/integration/security/headers.test.ts reads them
+// as served). Pages get their Content-Security-Policy, with a fresh nonce, from proxy.ts; JSON and
+// file answers from /api never load anything, so theirs allows nothing.
+const securityHeaders = [
+  { key: 'X-Content-Type-Options', value: 'nosniff' },
+  { key: 'Referrer-Policy', value: 'same-origin' },
+  { key: 'X-Frame-Options', value: 'DENY' },
+  { key: 'Permissions-Policy', value: 'camera=(), microphone=(), geolocation=()' },
+];
+
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   // npm test builds into its own folder so it never clobbers the served demo build.
@@ -10,6 +20,12 @@ const nextConfig = {
   experimental: {
     // Field images are streamed by route handlers; server actions take small forms only.
     serverActions: { bodySizeLimit: '1mb' },
+  },
+  async headers() {
+    return [
+      { source: '/:path*', headers: securityHeaders },
+      { source: '/api/:path*', headers: [{ key: 'Content-Security-Policy', value: "default-src 'none'; frame-ancestors 'none'" }] },
+    ];
   },
 };
 

@@ -8,4 +8,4 @@ bash scripts/services.sh start
 npx tsx scripts/db.ts migrate
 npx tsx scripts/db.ts seed-if-empty
 node scripts/print-demo.mjs
-exec npx next dev -H 127.0.0.1 -p "$PORT"
+HOST=127.0.0.1 exec node server.mjs --dev

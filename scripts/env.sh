@@ -14,16 +14,37 @@ else
 fi
 : "${DATA_DIR:=$ROOT/.data/$PROFILE}"
 : "${DB_HOST:=127.0.0.1}" "${DB_NAME:=fieldmark}" "${DB_USER:=fieldmark}" "${DB_PASSWORD:=fieldmark-local}"
+# The schema's owner (migrations, seeds, grants); the app runs as DB_USER, which may not alter tables.
+: "${DB_OWNER_USER:=fieldmark_owner}" "${DB_OWNER_PASSWORD:=fieldmark-owner-local}"
 : "${S3_ENDPOINT:=http://127.0.0.1:$S3_PORT}" "${S3_BUCKET:=fieldmark}" "${S3_REGION:=us-east-1}"
 : "${S3_ACCESS_KEY_ID:=S3RVER}" "${S3_SECRET_ACCESS_KEY:=S3RVER}"
 : "${SMTP_HOST:=127.0.0.1}" "${MAIL_FROM:=Fieldmark <no-reply@fieldmark.local>}"
 : "${MAIL_WEB_URL:=http://127.0.0.1:$MAIL_WEB_PORT}"
 : "${APP_URL:=http://localhost:$PORT}"
 : "${NEXTAUTH_URL:=$APP_URL}"
-: "${NEXTAUTH_SECRET:=local-development-secret-change-me-in-production}"
+
+# The session secret: made once per profile (48 random bytes) and kept in its data folder, which
+# git ignores, readable by the owner only; later starts reuse it, `npm test` starts from an empty
+# folder and so makes its own. A production start (public APP_URL or FIELDMARK_PRODUCTION=1) gets
+# none made here: it must bring its own, and the app refuses to start without one.
+app_url_is_local() { [[ "$APP_URL" =~ ^https?://(localhost|127\.0\.0\.1|\[::1\])(:[0-9]+)?(/|$) ]]; }
+if [ -z "${NEXTAUTH_SECRET:-}" ] && [ "${FIELDMARK_PRODUCTION:-0}" != 1 ] && app_url_is_local; then
+  SECRET_FILE="$DATA_DIR/nextauth-secret"
+  if [ ! -s "$SECRET_FILE" ]; then
+    mkdir -p "$DATA_DIR"
+    tmp="$SECRET_FILE.$$"
+    (umask 077; head -c 48 /dev/urandom | base64 -w0 | tr '+/' '-_' | tr -d '=' >"$tmp")
+    # ln refuses to replace a file: when two scripts start at once, the first secret stays.
+    ln "$tmp" "$SECRET_FILE" 2>/dev/null || true
+    rm -f "$tmp"
+  fi
+  chmod 600 "$SECRET_FILE"
+  NEXTAUTH_SECRET="$(cat "$SECRET_FILE")"
+fi
 export DB_PORT S3_PORT SMTP_PORT MAIL_WEB_PORT PORT DATA_DIR DB_HOST DB_NAME DB_USER DB_PASSWORD \
-  S3_ENDPOINT S3_BUCKET S3_REGION S3_ACCESS_KEY_ID S3_SECRET_ACCESS_KEY SMTP_HOST MAIL_FROM \
-  MAIL_WEB_URL APP_URL NEXTAUTH_URL NEXTAUTH_SECRET
+  DB_OWNER_USER DB_OWNER_PASSWORD S3_ENDPOINT S3_BUCKET S3_REGION S3_ACCESS_KEY_ID S3_SECRET_ACCESS_KEY \
+  SMTP_HOST MAIL_FROM MAIL_WEB_URL APP_URL NEXTAUTH_URL
+if [ -n "${NEXTAUTH_SECRET:-}" ]; then export NEXTAUTH_SECRET; fi
 RUN_DIR="$DATA_DIR/run"
 LOG_DIR="$DATA_DIR/log"
 export NEXT_TELEMETRY_DISABLED=1

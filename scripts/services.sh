@@ -14,8 +14,40 @@ export DB_SOCKET="$DB_SOCK"
 
 db_ping() { mariadb-admin --no-defaults --socket="$DB_SOCK" -uroot ping >/dev/null 2>&1; }
 
+# Accounts, made again on every start (idempotent), so a data folder from an older checkout is
+# brought up to date: the owner (migrations, seeds, grants) may do anything in the app's
+# databases; the app account gets its table grants from `scripts/db.ts migrate` and nothing
+# database-wide, so it cannot alter or drop tables, nor change the audit log.
+db_accounts() {
+  local u
+  mariadb --no-defaults --socket="$DB_SOCK" -uroot <<SQL
+CREATE DATABASE IF NOT EXISTS \`$DB_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
+SQL
+  for u in "'$DB_OWNER_USER'@'127.0.0.1'" "'$DB_OWNER_USER'@'localhost'"; do
+    mariadb --no-defaults --socket="$DB_SOCK" -uroot <<SQL
+CREATE USER IF NOT EXISTS $u IDENTIFIED BY '$DB_OWNER_PASSWORD';
+ALTER USER $u IDENTIFIED BY '$DB_OWNER_PASSWORD';
+GRANT ALL PRIVILEGES ON \`$DB_NAME\`.* TO $u WITH GRANT OPTION;
+GRANT ALL PRIVILEGES ON \`${DB_NAME}\\_%\`.* TO $u WITH GRANT OPTION;
+SQL
+  done
+  for u in "'$DB_USER'@'127.0.0.1'" "'$DB_USER'@'localhost'"; do
+    mariadb --no-defaults --socket="$DB_SOCK" -uroot <<SQL
+CREATE USER IF NOT EXISTS $u IDENTIFIED BY '$DB_PASSWORD';
+ALTER USER $u IDENTIFIED BY '$DB_PASSWORD';
+SQL
+  done
+  # Earlier checkouts gave the app account ALL PRIVILEGES on its databases: take them back.
+  local host dbname
+  while IFS=$'\t' read -r host dbname; do
+    [ -n "$host" ] || continue
+    mariadb --no-defaults --socket="$DB_SOCK" -uroot -e "REVOKE ALL PRIVILEGES ON \`$dbname\`.* FROM '$DB_USER'@'$host'"
+  done < <(mariadb --no-defaults --socket="$DB_SOCK" -uroot -N -B -e "SELECT Host, Db FROM mysql.db WHERE User = '$DB_USER'")
+  mariadb --no-defaults --socket="$DB_SOCK" -uroot -e 'FLUSH PRIVILEGES'
+}
+
 db_start() {
-  if pid_alive "$DB_PID" && db_ping; then say "MariaDB already up on 127.0.0.1:$DB_PORT"; return; fi
+  if pid_alive "$DB_PID" && db_ping; then say "MariaDB already up on 127.0.0.1:$DB_PORT"; db_accounts; return; fi
   rm -f "$DB_PID" "$DB_SOCK"
   port_open "$DB_PORT" && die "port $DB_PORT is taken by another program; set DB_PORT to a free port (see .env.example)"
   if [ ! -f "$DB_DIR/.initialised" ]; then
@@ -35,15 +67,7 @@ db_start() {
     </dev/null >/dev/null 2>&1 &
   local i; for ((i = 0; i < 300; i++)); do db_ping && break; sleep 0.1; done
   db_ping || die "MariaDB did not start; see $LOG_DIR/mariadb.log"
-  mariadb --no-defaults --socket="$DB_SOCK" -uroot <<SQL
-CREATE DATABASE IF NOT EXISTS \`$DB_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
-CREATE USER IF NOT EXISTS '$DB_USER'@'127.0.0.1' IDENTIFIED BY '$DB_PASSWORD';
-CREATE USER IF NOT EXISTS '$DB_USER'@'localhost' IDENTIFIED BY '$DB_PASSWORD';
-GRANT ALL PRIVILEGES ON \`$DB_NAME\`.* TO '$DB_USER'@'127.0.0.1';
-GRANT ALL PRIVILEGES ON \`$DB_NAME\`.* TO '$DB_USER'@'localhost';
-GRANT ALL PRIVILEGES ON \`${DB_NAME}_%\`.* TO '$DB_USER'@'127.0.0.1';
-FLUSH PRIVILEGES;
-SQL
+  db_accounts
   say "MariaDB up on 127.0.0.1:$DB_PORT (data $DB_DIR)"
 }
 

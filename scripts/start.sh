@@ -6,6 +6,9 @@ set -euo pipefail
 cd "$ROOT"
 t0=$(date +%s)
 bash scripts/install.sh
+# A production start (public APP_URL or FIELDMARK_PRODUCTION=1) with a missing or built-in secret
+# or password stops here, before anything starts, naming the variable to set.
+NODE_ENV=production npx tsx scripts/check-env.ts
 port_open "$PORT" && die "port $PORT is already in use (another Fieldmark or another program). Stop it, or run with PORT=<free port> npm start."
 bash scripts/services.sh start
 npx tsx scripts/db.ts migrate
@@ -16,4 +19,4 @@ if [ "${FIELDMARK_SKIP_BUILD:-0}" != 1 ]; then
 fi
 node scripts/print-demo.mjs
 say "ready in $(( $(date +%s) - t0 )) s — serving on $APP_URL (Ctrl-C stops the app; 'npm run services:stop' stops the services)"
-exec npx next start -H 127.0.0.1 -p "$PORT"
+HOST=127.0.0.1 exec node server.mjs

@@ -23,6 +23,8 @@ say "type check (tsc) and lint (eslint)"
 npx tsc --noEmit || die "the type check failed (npm run typecheck)"
 npx eslint --max-warnings 0 . || die "lint found problems (npm run lint)"
 bash scripts/services.sh reset >/dev/null
+# The reset removed the data folder and the session secret kept there: this run makes its own.
+if [ -n "${SECRET_FILE:-}" ]; then unset NEXTAUTH_SECRET; . scripts/env.sh; fi
 bash scripts/services.sh start || exit 1
 mkdir -p "$RESULTS" "$LOG_DIR"
 npx tsx scripts/db.ts migrate || exit 1
@@ -32,7 +34,7 @@ say "building the app for the browser and HTTP tests"
 if ! npx next build >"$LOG_DIR/build.log" 2>&1; then tail -60 "$LOG_DIR/build.log"; die "build failed"; fi
 port_open "$PORT" && die "port $PORT is taken; set PORT for the test run"
 # Its own process group, so the cleanup stops the server and every child it started.
-setsid npx next start -H 127.0.0.1 -p "$PORT" >"$LOG_DIR/app.log" 2>&1 &
+HOST=127.0.0.1 setsid node server.mjs >"$LOG_DIR/app.log" 2>&1 &
 app_pid=$!
 wait_port "$PORT" 60 || { tail -40 "$LOG_DIR/app.log"; die "the app did not start"; }
 

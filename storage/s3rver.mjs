@@ -1,12 +1,13 @@
-// The local S3 fake: s3rver on 127.0.0.1 with the app's bucket and a CORS rule
-// that lets the browser PUT to signed URLs. Production uses a real S3 store.
+// The local S3 fake: s3rver on 127.0.0.1 with the app's bucket and a CORS rule that lets
+// the app's own pages (and no other site's) use signed URLs. Production uses a real S3 store.
 import S3rver from 's3rver';
 
 const port = Number(process.env.S3_PORT ?? 4569);
 const bucket = process.env.S3_BUCKET ?? 'fieldmark';
+const appOrigin = new URL(process.env.APP_URL ?? 'http://localhost:3000').origin;
 const cors = `<CORSConfiguration>
   <CORSRule>
-    <AllowedOrigin>*</AllowedOrigin>
+    <AllowedOrigin>${appOrigin}</AllowedOrigin>
     <AllowedMethod>GET</AllowedMethod><AllowedMethod>PUT</AllowedMethod><AllowedMethod>HEAD</AllowedMethod>
     <AllowedHeader>*</AllowedHeader>
     <ExposeHeader>ETag</ExposeHeader>

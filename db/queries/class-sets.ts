@@ -14,11 +14,12 @@ const toSet = (r: Row): StoredClassSet => ({
   isDefault: !!r.is_default,
   revision: r.revision,
   classes: (typeof r.classes === 'string' ? JSON.parse(r.classes) : r.classes) as MarkClass[],
-  reads: Number(r.reads ?? 0),
+  reads: Number(r.read_count ?? 0),
 });
 
 export async function listClassSets(): Promise<StoredClassSet[]> {
-  const rows = await db('class_sets as c').select('c.*', db.raw('(select count(*) from `reads` r where r.class_set_id = c.id) as reads')).orderBy('c.name');
+  // `reads` is a reserved word in MariaDB: the table is quoted, and the count gets an alias that is not.
+  const rows = await db('class_sets as c').select('c.*', db.raw('(select count(*) from `reads` r where r.class_set_id = c.id) as read_count')).orderBy('c.name');
   return rows.map(toSet);
 }
 

@@ -2,8 +2,10 @@ import 'server-only';
 import { NextResponse, type NextRequest } from 'next/server';
 import { z } from 'zod';
 import { ApiError, type ApiIssue } from '@/lib/api/errors';
+import { asSentenceEnd, BodyTooLarge, crossSiteRefusal, isJsonContentType, readLimitedBody } from '@/lib/api/request-guard';
 import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
 import type { Role } from '@/lib/auth/roles';
+import { env } from '@/lib/env';
 
 type Schema = z.ZodType;
 type Infer<S> = S extends z.ZodType ? z.infer<S> : undefined;
@@ -45,14 +47,51 @@ function parse<S extends Schema>(schema: S, value: unknown, where: string): z.in
     const issues = zodIssues(r.error);
     const first = issues[0];
     const label = first?.path ? `${first.path}: ` : '';
-    throw new ApiError(422, 'invalid_input', `The ${where} is not valid — ${label}${first?.message ?? 'check the values'}.`, issues);
+    throw new ApiError(422, 'invalid_input', `The ${where} is not valid — ${label}${asSentenceEnd(first?.message ?? 'check the values')}`, issues);
   }
   return r.data;
 }
 
+let appOrigin: string | undefined;
+const ownOrigin = () => (appOrigin ??= new URL(env().APP_URL).origin);
+
+/** Refuses a state-changing request made by another site's page (see crossSiteRefusal). */
+export function refuseCrossSite(req: Request): void {
+  const why = crossSiteRefusal({ method: req.method, origin: req.headers.get('origin'), secFetchSite: req.headers.get('sec-fetch-site') }, ownOrigin());
+  if (why) {
+    console.warn('[fieldmark] cross-site request refused', req.method, new URL(req.url).pathname, why);
+    throw new ApiError(403, 'cross_site', 'This request came from another site and was refused; nothing was changed. Open Fieldmark at its own address and try again.');
+  }
+}
+
+/** The raw body within the JSON limit (413 past it, before anything is parsed). */
+export async function limitedBody(req: Request): Promise<Uint8Array> {
+  const limit = env().JSON_BODY_LIMIT_KB * 1024;
+  try {
+    return await readLimitedBody(req.body, req.headers.get('content-length'), limit);
+  } catch (err) {
+    if (err instanceof BodyTooLarge) throw new ApiError(413, 'too_large', `The request is larger than ${env().JSON_BODY_LIMIT_KB} kB; send less at once.`);
+    throw err;
+  }
+}
+
+async function jsonBody(req: Request): Promise<unknown> {
+  if (!isJsonContentType(req.headers.get('content-type'))) {
+    throw new ApiError(415, 'unsupported_media_type', 'Send the body as JSON, with Content-Type: application/json.');
+  }
+  const bytes = await limitedBody(req);
+  try {
+    return JSON.parse(new TextDecoder('utf-8', { fatal: true }).decode(bytes));
+  } catch {
+    throw new ApiError(400, 'bad_json', 'The request body must be JSON.');
+  }
+}
+
 /**
- * Every route handler goes through this: session (401), role (403), zod checks of
- * params, query and body (422), and error mapping (no stack traces leave the server).
+ * Every route handler goes through this: a state-changing request from another site's page
+ * (403), session (401), role (403), zod checks of params, query and body (422; a body must be
+ * application/json, 415, and within JSON_BODY_LIMIT_KB, 413), and error mapping (no stack traces
+ * leave the server).
  */
 export function route<P extends Schema | undefined = undefined, Q extends Schema | undefined = undefined, B extends Schema | undefined = undefined>(
   opts: Options<P, Q, B>,
@@ -60,21 +99,13 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
 ) {
   return async (req: NextRequest, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
     try {
+      refuseCrossSite(req);
       const user = await getRequestUser(req);
       if (!user) throw new ApiError(401, 'unauthenticated', 'Sign in to use this.');
       if (!opts.roles.includes(user.role)) throw new ApiError(403, 'forbidden', 'Your role does not allow this.');
       const params = opts.params ? parse(opts.params, await ctx.params, 'address') : undefined;
       const query = opts.query ? parse(opts.query, Object.fromEntries(req.nextUrl.searchParams), 'query') : undefined;
-      let body: unknown;
-      if (opts.body) {
-        let raw: unknown;
-        try {
-          raw = await req.json();
-        } catch {
-          throw new ApiError(400, 'bad_json', 'The request body must be JSON.');
-        }
-        body = parse(opts.body, raw, 'input');
-      }
+      const body = opts.body ? parse(opts.body, await jsonBody(req), 'input') : undefined;
       const result = await handler({ req, user, params, query, body } as RouteContext<Infer<P>, Infer<Q>, Infer<B>>);
       if (result instanceof Response) return result;
       return jsonResponse(result ?? { ok: true });

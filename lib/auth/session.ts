@@ -8,7 +8,7 @@ import { cache } from 'react';
 import { db } from '@/db/knex';
 import { authOptions } from '@/lib/auth/options';
 import type { Role } from '@/lib/auth/roles';
-import { env } from '@/lib/env';
+import { sessionSecret } from '@/lib/env';
 
 export type CurrentUser = { id: number; name: string; email: string; role: Role; clientId: number | null };
 
@@ -42,7 +42,7 @@ async function cachedDecode(params: JWTDecodeParams): Promise<JWT | null> {
 
 /** For route handlers: reads the session token straight from the request (no session round trip). */
 export async function getRequestUser(req: NextRequest): Promise<CurrentUser | null> {
-  const token = await getToken({ req, secret: env().NEXTAUTH_SECRET, decode: cachedDecode });
+  const token = await getToken({ req, secret: sessionSecret(), decode: cachedDecode });
   return typeof token?.id === 'number' ? activeUser(token.id) : null;
 }
 

@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { signIn, USERS } from './support/auth';
+import { DEMO_PASSWORD, signIn, USERS } from './support/auth';
 
 const NAV: Record<string, { email: string; has: string[]; hasNot: string[] }> = {
   technician: { email: USERS.tech, has: ['Dashboard', 'Stallions', 'Collections', 'Help and safety'], hasNot: ['Users', 'My stallions'] },
@@ -55,4 +55,30 @@ test('the help page shows the safety cautions', async ({ page }) => {
   await expect(page.getByRole('heading', { name: 'Safety and responsibility' })).toBeVisible();
   await expect(page.getByText(/strike, kick, rear/)).toBeVisible();
   await expect(page.getByText(/Formaldehyde/)).toBeVisible();
+});
+
+test('after sign-in, a callback address that would leave the app lands on the role\'s home page instead', async ({ page }) => {
+  const appOrigin = new URL(process.env.APP_URL ?? 'http://localhost:3100').origin;
+  // Nothing may actually reach another host from here.
+  await page.route((url) => url.hostname.endsWith('evil.example'), (route) => route.abort());
+  for (const callbackUrl of ['/\\evil.example', '/%09/evil.example', '//evil.example/']) {
+    await page.context().clearCookies();
+    // '%09' stays a tab once the query is decoded: the browser drops it and reads '//evil.example'.
+    await page.goto(`/sign-in?callbackUrl=${encodeURIComponent(callbackUrl).replace('%2509', '%09')}`);
+    await page.getByLabel('E-mail').fill(USERS.tech);
+    await page.getByLabel('Password').fill(DEMO_PASSWORD);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await expect(page.getByRole('heading', { name: /Good to see you/ })).toBeVisible();
+    expect(new URL(page.url()).origin, callbackUrl).toBe(appOrigin);
+    expect(new URL(page.url()).pathname).toBe('/dashboard');
+  }
+});
+
+test('after sign-in, a callback address on the app is followed', async ({ page }) => {
+  await page.goto('/collections');
+  await expect(page).toHaveURL(/\/sign-in\?callbackUrl=/);
+  await page.getByLabel('E-mail').fill(USERS.tech);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByRole('heading', { name: 'Collections', level: 1 })).toBeVisible();
 });

@@ -1,4 +1,7 @@
-import { expect, test } from '@playwright/test';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import bcrypt from 'bcryptjs';
+import knexFactory from 'knex';
+import { knexConfig } from '../../knexfile';
 import { signIn, USERS } from './support/auth';
 
 const MAIL_WEB_URL = process.env.MAIL_WEB_URL ?? 'http://127.0.0.1:1090';
@@ -45,5 +48,52 @@ test('a lab manager invites a technician, who sets a password and signs in; deac
   await expect(page.getByRole('row', { name: /Bryony Castellan/ })).toContainText('Deactivated');
   await newcomer.reload();
   await expect(newcomer).toHaveURL(/\/sign-in/);
+  await ctx.close();
+});
+
+async function linkFor(request: APIRequestContext, email: string, nth: number): Promise<string> {
+  let link = '';
+  await expect(async () => {
+    const mails = (await (await request.get(`${MAIL_WEB_URL}/api/email`)).json()) as { text: string; to: { address: string }[] }[];
+    const mine = mails.filter((m) => m.to.some((t) => t.address === email));
+    link = mine[nth]?.text.match(/https?:\/\/\S+\/invite\/\S+/)?.[0] ?? '';
+    expect(link).not.toBe('');
+  }).toPass();
+  return link;
+}
+
+test('a lab manager sends a password reset; the user sets a new password and the old one stops working', async ({ page, browser, request }) => {
+  const email = `e2e-reset-${Date.now()}@quillfield.example`;
+  const db = knexFactory(knexConfig());
+  try {
+    await db('users').insert({ email, name: 'Linnet Corrowby', role: 'technician', active: true, password_hash: await bcrypt.hash('forgotten-password-1', 4) });
+  } finally {
+    await db.destroy();
+  }
+  await page.goto('/sign-in');
+  await expect(page.getByText(/Forgotten your password\? Your lab manager can send you a link/)).toBeVisible();
+
+  await signIn(page, USERS.manager);
+  await page.goto('/admin/users');
+  await page.getByRole('row').filter({ hasText: email }).getByRole('button', { name: /Send password reset/ }).click();
+  await expect(page.getByRole('status')).toHaveText(`A link to set a new password was sent to ${email}.`);
+  const link = await linkFor(request, email, 0);
+
+  const ctx = await browser.newContext();
+  const user = await ctx.newPage();
+  await user.goto(new URL(link).pathname);
+  await expect(user.getByRole('heading', { name: 'Set a new password' })).toBeVisible();
+  await user.getByLabel('New password').fill('a-brand-new-password');
+  await user.getByLabel('Repeat the password').fill('a-brand-new-password');
+  await user.getByRole('button', { name: 'Set password' }).click();
+  await expect(user.getByText('Your password is set.')).toBeVisible();
+
+  await user.goto('/sign-in');
+  await user.getByLabel('E-mail').fill(email);
+  await user.getByLabel('Password').fill('forgotten-password-1');
+  await user.getByRole('button', { name: 'Sign in' }).click();
+  await expect(user.locator('#sign-in-error')).toHaveText(/e-mail or password is wrong/);
+  await signIn(user, email, 'a-brand-new-password');
+  await expect(user.getByRole('heading', { name: /Good to see you, Linnet/ })).toBeVisible();
   await ctx.close();
 });

@@ -1,6 +1,8 @@
 import type { Metadata } from 'next';
 import { redirect } from 'next/navigation';
+import { safeCallbackUrl } from '@/lib/auth/callback-url';
 import { getCurrentUser } from '@/lib/auth/session';
+import { env } from '@/lib/env';
 import { SignInForm } from './_components/sign-in-form';
 
 export const metadata: Metadata = { title: 'Sign in' };
@@ -8,8 +10,8 @@ export const metadata: Metadata = { title: 'Sign in' };
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ callbackUrl?: string }> }) {
   if (await getCurrentUser()) redirect('/');
   const { callbackUrl } = await searchParams;
-  // Only same-site paths are followed after sign-in.
-  const next = callbackUrl && callbackUrl.startsWith('/') && !callbackUrl.startsWith('//') ? callbackUrl : '/';
+  // Only addresses on the app's own origin are followed; anything else lands on the role's home page ('/').
+  const next = safeCallbackUrl(callbackUrl, env().APP_URL) ?? '/';
   return (
     <main className="flex min-h-screen items-center justify-center p-4">
       <div className="w-full max-w-sm">
@@ -17,7 +19,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
         <h1 className="mb-6">Sign in to the lab workbench</h1>
         <SignInForm next={next} />
         <p className="mt-6 text-xs text-ink-faint">
-          Accounts are made by your lab manager. Forgotten password: ask them for a new invitation.
+          Accounts are made by your lab manager. Forgotten your password? Your lab manager can send you a link to set a new one.
         </p>
       </div>
     </main>

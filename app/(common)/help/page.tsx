@@ -1,8 +1,10 @@
+import { requirePageUser } from '@/lib/auth/session';
 import { CAUTIONS } from '@/lib/cautions';
 
 export const metadata = { title: 'Help and safety' };
 
-export default function HelpPage() {
+export default async function HelpPage() {
+  await requirePageUser();
   return (
     <div className="max-w-3xl space-y-6">
       <h1>Help and safety</h1>

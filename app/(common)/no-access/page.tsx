@@ -1,12 +1,12 @@
 import Link from 'next/link';
-import { getCurrentUser } from '@/lib/auth/session';
+import { requirePageUser } from '@/lib/auth/session';
 import { isStaff } from '@/lib/auth/roles';
 
 export const metadata = { title: 'No access' };
 
 export default async function NoAccessPage() {
-  const user = await getCurrentUser();
-  const home = user && isStaff(user.role) ? '/dashboard' : '/portal';
+  const user = await requirePageUser();
+  const home = isStaff(user.role) ? '/dashboard' : '/portal';
   return (
     <div className="card max-w-xl">
       <h1 className="mb-2">You do not have access to that page</h1>

@@ -10,7 +10,13 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
     <main className="flex min-h-screen items-center justify-center p-4">
       <div className="w-full max-w-sm">
         <p className="mb-1 text-sm font-semibold uppercase tracking-widest text-brand">Fieldmark</p>
-        {invitation ? (
+        {invitation?.purpose === 'password_reset' ? (
+          <>
+            <h1 className="mb-2">Set a new password</h1>
+            <p className="mb-6 text-sm text-ink-soft">Choose a new password for {invitation.email}. Your old password stops working once this one is set.</p>
+            <SetPasswordForm token={token} />
+          </>
+        ) : invitation ? (
           <>
             <h1 className="mb-2">Welcome, {invitation.name}</h1>
             <p className="mb-6 text-sm text-ink-soft">Choose a password for {invitation.email}.</p>
@@ -19,7 +25,7 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
         ) : (
           <>
             <h1 className="mb-2">This link cannot be used</h1>
-            <p className="text-sm text-ink-soft">It has expired or was already used. Ask your lab manager for a new invitation.</p>
+            <p className="text-sm text-ink-soft">It has expired, was already used, or a newer link was sent. Ask your lab manager for a new one.</p>
           </>
         )}
       </div>

@@ -8,16 +8,17 @@ import { knexConfig } from '@/knexfile';
  * here that writes rows into what it made and checks them (and every earlier step's rows) after
  * each later move, up or down. A new migration needs its own step: the first test fails until it
  * has one.
+ * Runs as the schema's owner, like scripts/db.ts: the app account may not create or alter tables.
  */
 const NAME = `${process.env.DB_NAME ?? 'fieldmark'}_migrations`;
 let admin: Knex;
 let db: Knex;
 
 beforeAll(async () => {
-  admin = knexFactory(knexConfig());
+  admin = knexFactory(knexConfig(undefined, 'owner'));
   await admin.raw('DROP DATABASE IF EXISTS ??', [NAME]);
   await admin.raw('CREATE DATABASE ?? CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci', [NAME]);
-  db = knexFactory(knexConfig(NAME));
+  db = knexFactory(knexConfig(NAME, 'owner'));
 });
 
 afterAll(async () => {
@@ -110,6 +111,20 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       // While the flag columns exist (before the next step, or after it is rolled back), they agree with the snapshot.
       if ((await columns('marks')).includes('is_normal')) {
         expect(rows.map((r) => [r.class_key, Boolean(r.counts_as_sperm), Boolean(r.is_normal)])).toEqual(MARKS.map((m) => [m.class_key, m.sperm, m.normal]));
+      }
+    },
+  },
+  '20261203120000_invitation_purpose.ts': {
+    tables: [],
+    async write() {
+      [ids.invitation] = await db('invitations').insert({ user_id: ids.user, token_hash: 'b'.repeat(64), expires_at: new Date('2027-01-01T00:00:00Z'), purpose: 'password_reset' });
+      [ids.oldInvitation] = await db('invitations').insert({ user_id: ids.user, token_hash: 'c'.repeat(64), expires_at: new Date('2027-01-01T00:00:00Z') });
+    },
+    async check() {
+      // The rows outlive a step down (they lose only their purpose); while the column exists, it holds.
+      expect(await db('invitations').whereIn('id', [ids.invitation!, ids.oldInvitation!]).orderBy('id').pluck('token_hash')).toEqual(['b'.repeat(64), 'c'.repeat(64)]);
+      if ((await columns('invitations')).includes('purpose')) {
+        expect(await db('invitations').whereIn('id', [ids.invitation!, ids.oldInvitation!]).orderBy('id').pluck('purpose')).toEqual(['password_reset', 'invitation']);
       }
     },
   },

@@ -1,5 +1,5 @@
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync, statSync } from 'node:fs';
 import { createServer, type Server } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -49,6 +49,50 @@ describe('service scripts', { timeout: 120_000 }, () => {
     expect(services('status').stdout).toMatch(/MariaDB .*: down/);
     expect(services('start').status).toBe(0);
     expect(sql('SELECT v FROM keepcheck.t')).toBe('still here');
+  });
+
+  it('give the app account no database-wide privilege, taking back what older checkouts granted', () => {
+    expect(services('start').status).toBe(0);
+    const app = (host: string) => `'${process.env.DB_USER ?? 'fieldmark'}'@'${host}'`;
+    // What a data folder made before the owner account existed holds.
+    sql(`GRANT ALL PRIVILEGES ON fieldmark.* TO ${app('127.0.0.1')}; GRANT ALL PRIVILEGES ON \`fieldmark_%\`.* TO ${app('127.0.0.1')}; GRANT ALL PRIVILEGES ON fieldmark.* TO ${app('localhost')}`);
+    expect(sql(`SHOW GRANTS FOR ${app('127.0.0.1')}`)).toMatch(/GRANT ALL PRIVILEGES ON `fieldmark`/);
+    // A second start (services already up) brings the accounts up to date too.
+    expect(services('start').status).toBe(0);
+    for (const host of ['127.0.0.1', 'localhost']) {
+      const grants = sql(`SHOW GRANTS FOR ${app(host)}`);
+      expect(grants, host).not.toMatch(/ALL PRIVILEGES/);
+      expect(grants, host).not.toMatch(/ON `fieldmark/);
+    }
+    const owner = sql(`SHOW GRANTS FOR '${process.env.DB_OWNER_USER ?? 'fieldmark_owner'}'@'127.0.0.1'`);
+    expect(owner).toMatch(/GRANT ALL PRIVILEGES ON `fieldmark`\.\* TO .* WITH GRANT OPTION/);
+  });
+
+  it('make the session secret once per profile, private to its owner, and reuse it', () => {
+    const secret = () => execFileSync('bash', ['-c', '. scripts/env.sh; printf %s "$NEXTAUTH_SECRET"'], { env: { ...env, NEXTAUTH_SECRET: '' }, encoding: 'utf8' });
+    const first = secret();
+    expect(Buffer.from(first, 'base64url').length).toBeGreaterThanOrEqual(32);
+    expect(statSync(join(dir, 'nextauth-secret')).mode & 0o777).toBe(0o600);
+    expect(secret()).toBe(first);
+    expect(first).not.toBe(process.env.NEXTAUTH_SECRET);
+    // A production address gets none made: it must bring its own.
+    const prod = execFileSync('bash', ['-c', '. scripts/env.sh; printf %s "${NEXTAUTH_SECRET:-none}"'], { env: { ...env, NEXTAUTH_SECRET: '', APP_URL: 'https://fieldmark.lab.example' }, encoding: 'utf8' });
+    expect(prod).toBe('none');
+  });
+
+  it('refuse a production start with a built-in secret or password, naming the variable', () => {
+    const r = spawnSync('bash', ['scripts/start.sh'], { env: { ...env, FIELDMARK_PRODUCTION: '1', NEXTAUTH_SECRET: 'local-development-secret-change-me-in-production' }, encoding: 'utf8', timeout: 120_000 });
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/refuses to start in production/);
+    for (const v of ['NEXTAUTH_SECRET', 'DB_PASSWORD', 'DB_OWNER_PASSWORD', 'S3_SECRET_ACCESS_KEY']) expect(r.stderr).toContain(v);
+  });
+
+  it('the app itself refuses such a start too, whoever starts it', () => {
+    const distDir = process.env.NEXT_DIST_DIR ?? '.next-test';
+    expect(existsSync(join(distDir, 'BUILD_ID')), `the app's build in ${distDir} (npm test makes it)`).toBe(true);
+    const r = spawnSync('node', ['server.mjs'], { env: { ...env, NEXT_DIST_DIR: distDir, FIELDMARK_PRODUCTION: '1', HOST: '127.0.0.1', NEXTAUTH_SECRET: '' }, encoding: 'utf8', timeout: 60_000 });
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/NEXTAUTH_SECRET is not set/);
   });
 
   it('say clearly when a port is taken', async () => {

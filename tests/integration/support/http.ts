@@ -1,11 +1,21 @@
+import { Agent, fetch as undiciFetch } from 'undici';
 import { DEMO_PASSWORD, USERS } from '../../support/demo-users';
 
 export { DEMO_PASSWORD, USERS };
 // An HTTP client that signs in through next-auth's credentials flow and keeps the cookies.
 export const APP_URL = process.env.APP_URL ?? 'http://localhost:3100';
 
+/** Any 127.x.y.z: the app sees it as the socket's address, so tests can come from many clients. */
+export const randomLoopback = () => `127.${1 + Math.floor(Math.random() * 250)}.${Math.floor(Math.random() * 256)}.${1 + Math.floor(Math.random() * 250)}`;
+
 export class Session {
   private cookies = new Map<string, string>();
+  private dispatcher?: Agent;
+
+  /** `from`: the local address to connect from (a loopback address other than 127.0.0.1). */
+  constructor(opts: { from?: string } = {}) {
+    if (opts.from) this.dispatcher = new Agent({ localAddress: opts.from });
+  }
 
   private store(res: Response) {
     for (const c of res.headers.getSetCookie()) {
@@ -15,6 +25,10 @@ export class Session {
     }
   }
 
+  setCookie(name: string, value: string) {
+    this.cookies.set(name, value);
+  }
+
   get cookieHeader() {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
   }
@@ -22,7 +36,10 @@ export class Session {
   async fetch(path: string, init: RequestInit = {}): Promise<Response> {
     const headers = new Headers(init.headers);
     if (this.cookies.size) headers.set('cookie', this.cookieHeader);
-    const send = () => fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
+    const send = (): Promise<Response> =>
+      this.dispatcher
+        ? (undiciFetch(`${APP_URL}${path}`, { ...(init as object), headers, redirect: 'manual', dispatcher: this.dispatcher }) as unknown as Promise<Response>)
+        : fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
     let res: Response;
     try {
       res = await send();
@@ -52,12 +69,13 @@ export class Session {
   }
 
   /** Returns the error code next-auth reported, or null when signed in. */
-  async signIn(email: string, password = DEMO_PASSWORD, address?: string): Promise<string | null> {
+  /** `forwardedFor`: an X-Forwarded-For header to send (the app believes it only with TRUST_PROXY). */
+  async signIn(email: string, password = DEMO_PASSWORD, forwardedFor?: string): Promise<string | null> {
     const csrf = await this.json<{ csrfToken: string }>('/api/auth/csrf');
     const form = new URLSearchParams({ csrfToken: csrf.body.csrfToken, email, password, json: 'true' });
     const res = await this.fetch('/api/auth/callback/credentials', {
       method: 'POST',
-      headers: { 'content-type': 'application/x-www-form-urlencoded', ...(address ? { 'x-forwarded-for': address } : {}) },
+      headers: { 'content-type': 'application/x-www-form-urlencoded', ...(forwardedFor ? { 'x-forwarded-for': forwardedFor } : {}) },
       body: form.toString(),
     });
     // With json=true next-auth answers { url }; without it, a redirect. Either carries ?error=.
@@ -66,8 +84,8 @@ export class Session {
   }
 }
 
-export async function signedIn(email: string): Promise<Session> {
-  const s = new Session();
+export async function signedIn(email: string, opts: { from?: string } = {}): Promise<Session> {
+  const s = new Session(opts);
   const err = await s.signIn(email);
   if (err) throw new Error(`sign-in as ${email} failed: ${err}`);
   return s;

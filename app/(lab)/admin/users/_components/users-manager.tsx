@@ -44,6 +44,16 @@ export function UsersManager({ initialUsers, clients, meId }: { initialUsers: Us
     }
   }
 
+  async function sendLink(u: User) {
+    setStatus(null);
+    try {
+      const { purpose } = await apiFetch<{ purpose: 'invitation' | 'password_reset' }>(`/api/users/${u.id}/password-link`, { method: 'POST' });
+      setStatus({ kind: 'ok', text: purpose === 'password_reset' ? `A link to set a new password was sent to ${u.email}.` : `A new invitation was sent to ${u.email}.` });
+    } catch (err) {
+      setStatus({ kind: 'error', text: err instanceof Error ? err.message : 'The link could not be sent.' });
+    }
+  }
+
   const errors = form.formState.errors;
   return (
     <div className="space-y-6">
@@ -121,13 +131,21 @@ export function UsersManager({ initialUsers, clients, meId }: { initialUsers: Us
                   )}
                 </td>
                 <td className="td">{!u.active ? 'Deactivated' : u.invited ? 'Invited' : 'Active'}</td>
-                <td className="td text-right">
-                  {u.id !== meId && (
-                    <button type="button" className={u.active ? 'btn-secondary py-1' : 'btn py-1'} onClick={() => change(u.id, { active: !u.active })}>
-                      {u.active ? `Deactivate` : `Reactivate`}
-                      <span className="sr-only"> {u.name}</span>
-                    </button>
-                  )}
+                <td className="td whitespace-nowrap text-right">
+                  <span className="inline-flex gap-2">
+                    {u.active && (
+                      <button type="button" className="btn-secondary py-1" onClick={() => sendLink(u)}>
+                        {u.invited ? 'Send a new invitation' : 'Send password reset'}
+                        <span className="sr-only"> to {u.name}</span>
+                      </button>
+                    )}
+                    {u.id !== meId && (
+                      <button type="button" className={u.active ? 'btn-secondary py-1' : 'btn py-1'} onClick={() => change(u.id, { active: !u.active })}>
+                        {u.active ? `Deactivate` : `Reactivate`}
+                        <span className="sr-only"> {u.name}</span>
+                      </button>
+                    )}
+                  </span>
                 </td>
               </tr>
             ))}

@@ -1,3 +1,4 @@
+import { create as contentDisposition } from 'content-disposition';
 import { Readable } from 'node:stream';
 import { getImageRow } from '@/db/queries/images';
 import { route } from '@/lib/api/handler';
@@ -15,6 +16,7 @@ export const GET = route({ roles: STAFF_ROLES, params: imageVariantParams }, asy
     'cache-control': 'private, max-age=3600, immutable',
   };
   if (obj.contentLength != null) headers['content-length'] = String(obj.contentLength);
-  if (params.variant === 'original') headers['content-disposition'] = `attachment; filename="${row.file_name.replace(/"/g, '')}"`;
+  // RFC 6266: an ASCII fallback name plus filename*=UTF-8''…, so any file name survives the header.
+  if (params.variant === 'original') headers['content-disposition'] = contentDisposition(row.file_name);
   return new Response(Readable.toWeb(obj.body) as ReadableStream, { headers });
 });
