@@ -1,5 +1,6 @@
 import 'server-only';
 import { PassThrough, Readable } from 'node:stream';
+import { create as contentDisposition } from 'content-disposition';
 import { stringify } from 'csv-stringify';
 import ExcelJS from 'exceljs';
 import { exportHeader, exportRow } from './export';
@@ -49,7 +50,8 @@ export function downloadResponse(body: Readable, contentType: string, fileName: 
   return new Response(Readable.toWeb(body) as ReadableStream, {
     headers: {
       'content-type': contentType,
-      'content-disposition': `attachment; filename="${fileName}"`,
+      // RFC 6266: an ASCII fallback plus filename*=UTF-8''…, so a stallion's accented name survives.
+      'content-disposition': contentDisposition(fileName),
       'cache-control': 'no-store',
     },
   });

@@ -41,8 +41,8 @@ export const EXPORT_COLUMNS: readonly ExportColumn[] = [
 export const exportHeader = (): string[] => EXPORT_COLUMNS.map((c) => c.header);
 export const exportRow = (p: HistoryPoint, timeZone: string): ExportValue[] => EXPORT_COLUMNS.map((c) => c.value(p, timeZone));
 
-/** A file name with the lab's range, safe in a Content-Disposition header. */
+/** A file name with the lab's range (the Content-Disposition header encodes any characters). */
 export function exportFileName(what: string, range: { from?: string; to?: string }, ext: 'csv' | 'xlsx'): string {
-  const slug = what.normalize('NFKD').replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').toLowerCase() || 'collections';
+  const slug = what.trim().replace(/[\s/\\:*?"<>|]+/g, '-').replace(/^-+|-+$/g, '').toLowerCase() || 'collections';
   return `${slug}${range.from ? `_${range.from}` : ''}${range.to ? `_to_${range.to}` : ''}.${ext}`;
 }
