@@ -71,7 +71,7 @@ function HoverCard({ active, payload, timeZone }: { active?: boolean; payload?: 
   if (!row) return null;
   const p = row.point;
   return (
-    <div className="max-w-xs rounded-md border border-line bg-paper-raised px-3 py-2 text-xs shadow-md" data-testid="history-hover">
+    <div role="tooltip" className="max-w-xs rounded-md border border-line bg-paper-raised px-3 py-2 text-xs shadow-md">
       <p className="font-semibold">Collection of {new Date(p.collectedAt).toLocaleString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZone })}</p>
       <p>
         % normal: <strong>{pct(p.percentNormal)}</strong>

@@ -64,7 +64,7 @@ export function HistoryView({ initial, today }: { initial: StallionHistory; toda
 
   return (
     <div className="space-y-6">
-      <section aria-label="Range" className="card flex flex-wrap items-end gap-3">
+      <section aria-label="Date range of the history" className="card flex flex-wrap items-end gap-3">
         <div>
           <label htmlFor="history-range" className="label">Range</label>
           <select id="history-range" className="input" value={choiceValue(choice)} onChange={(e) => pick(e.target.value)}>
