@@ -7,8 +7,8 @@ import { fmtDate } from '@/lib/format';
  * collection page and to a screen reader alike.
  */
 export function windowFlagText(flag: NonNullable<CollectionFlag>): string {
-  const events = flag.events.map((e) => `${e.label}, day ${e.windowDay} of ${e.windowDays}`).join('; ');
-  return `${events} — window clears ${fmtDate(flag.clearsDate)}`;
+  const events = flag.events.map((e) => `${e.label} day ${e.windowDay} of ${e.windowDays}`).join('; ');
+  return `${events} · clears ${fmtDate(flag.clearsDate)}`;
 }
 
 export function WindowFlag({ flag, compact = false }: { flag: CollectionFlag; compact?: boolean }) {

@@ -61,14 +61,6 @@ export default async function StallionPage({ params }: { params: Promise<{ id: s
         </p>
       )}
 
-      <section aria-labelledby="collections-heading" className="space-y-3">
-        <div className="flex flex-wrap items-center justify-between gap-3">
-          <h2 id="collections-heading">Collections ({s.collections})</h2>
-          <ExportLinks endpoint={`/api/stallions/${s.id}/export`} params={{}} label="Export all collections" />
-        </div>
-        <CollectionsTable stallionId={s.id} />
-      </section>
-
       <section aria-labelledby="events-heading" className="card space-y-3">
         <h2 id="events-heading">Health events</h2>
         <p className="text-sm text-ink-soft">
@@ -78,6 +70,15 @@ export default async function StallionPage({ params }: { params: Promise<{ id: s
         <HealthEvents stallionId={s.id} events={events} canWrite={HEALTH_EVENT_WRITER_ROLES.includes(user.role)} today={labDayKey(new Date(), settings.timeZone)} />
         <p className="text-xs text-ink-faint">Figures support, and never replace, a veterinarian’s judgement; treatment and breeding decisions follow local regulations and licensed veterinary practice.</p>
       </section>
+
+      <section aria-labelledby="collections-heading" className="space-y-3">
+        <div className="flex flex-wrap items-center justify-between gap-3">
+          <h2 id="collections-heading">Collections ({s.collections})</h2>
+          <ExportLinks endpoint={`/api/stallions/${s.id}/export`} params={{}} label="Export all collections" />
+        </div>
+        <CollectionsTable stallionId={s.id} />
+      </section>
+
 
       <section aria-labelledby="testis-heading" className="card space-y-4">
         <h2 id="testis-heading">Testicular measurements and daily sperm output</h2>
