@@ -24,8 +24,9 @@ import { labDateEnd, labDateStart } from '@/lib/time/lab-time';
 
 /*
  * The history charts (recharts draws in the browser only; the page loads this without SSR). Every
- * chart shares one x axis (time on the lab's calendar over the chosen range), the same rows and one
- * syncId, so hovering a collection in one shows it in all. Health events are marked where they
+ * chart shares one x axis (time on the lab's calendar over the chosen range) and the same rows, so a
+ * collection sits at the same place in each; hovering shows its values in the chart under the pointer
+ * (tooltips synced across all four hid the lines). Health events are marked where they
  * start and their windows (merged where they overlap) are shaded. Clicking a point opens the
  * collection. Colours are from the Okabe–Ito palette and the defect lines differ by dash pattern
  * too, so no series is told apart by colour alone.
@@ -179,7 +180,6 @@ export const HistoryCharts = memo(function HistoryCharts({ series, events, windo
 
   const common = {
     data: rows,
-    syncId: 'stallion-history',
     margin: { top: 8, right: 16, bottom: 4, left: 4 },
     onClick: onChartClick,
     style: { cursor: 'pointer' },
