@@ -161,6 +161,23 @@ describe('windows and flags', () => {
   });
 });
 
+describe('the stallion page', () => {
+  it('says "re-evaluate from {date}" while a window is open, and not after', async () => {
+    const st = await makeStallion();
+    const day = (offset: number) => new Date(Date.now() + offset * 86_400_000).toISOString().slice(0, 10);
+    const shown = (d: string) => new Date(`${d}T00:00:00Z`).toLocaleDateString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', timeZone: 'UTC' });
+    const page = async () => (await tech.fetch(`/stallions/${st.id}`)).text();
+    expect(await page()).not.toContain('Re-evaluate from');
+    // An injury 80 days ago has cleared (67 days); one 10 days ago clears 57 days from today.
+    await tech.json(`/api/stallions/${st.id}/health-events`, 'POST', { kind: 'injury', startedOn: day(-80) });
+    expect(await page()).not.toContain('Re-evaluate from');
+    await tech.json(`/api/stallions/${st.id}/health-events`, 'POST', { kind: 'housing', startedOn: day(-10), notes: 'Moved to the north barn' });
+    const html = await page();
+    expect(html).toContain('Re-evaluate from');
+    expect(html).toContain(shown(day(57)));
+  });
+});
+
 describe('history API and exports', () => {
   it('returns the series of a range with figures, windows and the events, in one answer', async () => {
     const st = await stallionWithCollections(['2026-04-20T09:00:00.000Z', '2026-05-27T09:00:00.000Z', '2026-08-01T09:00:00.000Z', '2025-06-01T09:00:00.000Z']);
