@@ -42,7 +42,7 @@ test('the fever stallion’s history shows the window, hover values, click-throu
 
   await expect(page.getByRole('heading', { name: `History of ${DEMO_FEVER.stallionName}` })).toBeVisible();
   const normal = page.getByRole('figure', { name: /% normal per collection/ });
-  await expect(normal).toBeVisible();
+  await expect(normal).toBeVisible({ timeout: 30_000 });
   // The window is shaded and labelled on the chart, and the event marked.
   await expect(normal.getByText('Fever window (clears 12 Jul 2026)')).toBeVisible();
   // Collections with a read inside the window are links named as flagged; those before it are not.
@@ -196,13 +196,14 @@ test.describe('the charts draw for any number of collections', () => {
       await signIn(page, USERS.tech);
       await page.goto(`/stallions/${id}/history?from=2024-01-01&to=2026-12-31`);
       const normal = page.getByRole('figure', { name: /% normal per collection/ });
-      await expect(normal).toBeVisible();
+      // Drawing 4 charts of 500 collections on a busy 2-core machine can take a while: wait for it, then check.
+      await expect(normal).toBeVisible({ timeout: 60_000 });
       if (n === 0) {
         await expect(page.getByRole('figure')).toHaveCount(4);
         await expect(normal).toContainText('No collections in this range.');
       } else {
         // Every collection is a point; those inside the injury's window (1 Feb + 67 days) say so.
-        await expect(normal.getByRole('link')).toHaveCount(n);
+        await expect(normal.getByRole('link')).toHaveCount(n, { timeout: 30_000 });
         await expect(page.getByRole('table', { name: 'Collections in the range' }).getByRole('row')).toHaveCount(n + 1);
       }
       await expect(page.getByRole('table', { name: 'Summary of the main figures' })).toContainText(n === 0 ? '—' : '% normal');
