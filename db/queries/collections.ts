@@ -4,6 +4,7 @@ import { db } from '@/db/knex';
 import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { morphologyByCollection, type ReadMorphology } from '@/db/queries/morphology';
+import { windowFlagsFor, type CollectionFlag } from '@/db/queries/health-events';
 import type { Row } from '@/db/row';
 import { ApiError, notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
@@ -39,11 +40,13 @@ export type Collection = {
   daysSincePrevious: number | null;
   /** Sperm cells counted in the first read and % normal among them (null before the read starts); from the morphology engine. */
   firstRead: { cells: number; pctNormal: number | null; status: ReadStatus } | null;
+  /** Inside a health event's spermatogenic window: each event covering it with its day, and when the merged stretch clears. */
+  window: CollectionFlag;
 };
 
 const DAY_MS = 864e5;
 
-function toCollection(r: Row, reads: readonly ReadMorphology[]): Collection {
+function toCollection(r: Row, reads: readonly ReadMorphology[], window: CollectionFlag): Collection {
   const first = reads.find((x) => x.kind === FIRST_READ);
   const at = new Date(r.collected_at);
   const prev = r.previous_at ? new Date(r.previous_at) : null;
@@ -70,6 +73,7 @@ function toCollection(r: Row, reads: readonly ReadMorphology[]): Collection {
     remarks: r.remarks,
     daysSincePrevious: prev ? Math.round(((at.getTime() - prev.getTime()) / DAY_MS) * 10) / 10 : null,
     firstRead: first ? { cells: first.morphology.cellsCounted, pctNormal: first.morphology.pctNormal, status: first.status } : null,
+    window,
   };
 }
 
@@ -86,10 +90,16 @@ function selectCollections(k: Knex | Knex.Transaction = db) {
     );
 }
 
-/** Rows to collections, with their reads' figures from the morphology engine (one grouped query for the lot). */
+/**
+ * Rows to collections, with their reads' figures from the morphology engine (one grouped query for
+ * the lot) and their health-event window flags (one query for their stallions' events).
+ */
 async function withMorphology(actor: CurrentUser, rows: Row[]): Promise<Collection[]> {
-  const reads = await morphologyByCollection(actor, rows.map((r) => r.id));
-  return rows.map((r) => toCollection(r, reads.get(r.id) ?? []));
+  const [reads, flags] = await Promise.all([
+    morphologyByCollection(actor, rows.map((r) => r.id)),
+    windowFlagsFor(actor, rows.map((r) => ({ id: r.id, stallionId: r.stallion_id, collectedAt: new Date(r.collected_at).toISOString() }))),
+  ]);
+  return rows.map((r) => toCollection(r, reads.get(r.id) ?? [], flags.get(r.id) ?? null));
 }
 
 const SORT_COLUMNS = {

@@ -4,6 +4,8 @@ export type Role = (typeof ROLES)[number];
 export const STAFF_ROLES: readonly Role[] = ['technician', 'veterinarian', 'lab_manager'];
 /** Who may record collections, upload images and read. */
 export const READER_ROLES: readonly Role[] = ['technician', 'veterinarian'];
+/** Who may record, change and delete a stallion's health events (lab managers read them). */
+export const HEALTH_EVENT_WRITER_ROLES: readonly Role[] = ['technician', 'veterinarian'];
 
 export const ROLE_LABELS: Record<Role, string> = {
   technician: 'Technician',

@@ -177,7 +177,11 @@ export const DEMO_FEVER = Object.freeze({
   stallionName: 'Thistlewick Lantern',
   stallionRegistration: '956000000001014',
   date: '2026-05-04',
+  /** Last day of the fever (normal temperature again from 7 May). */
+  endDate: '2026-05-06',
   temperatureC: 39.8,
+  /** The health event's notes (seed 08 records the fever as a health event). */
+  notes: 'Treated by the attending vet; normal temperature again from 7 May. No collections while ill.',
   /** Written in the remarks of the first collection after the fever. */
   remark: 'Fever 39.8 °C on 4 May, treated by the attending vet',
   /** Days after the fever during which progressive motility is lower. */
@@ -291,6 +295,26 @@ export function expectedAbnormalShare(stallionRegistration: string, collectedAt:
   if (stallion.key !== DEMO_FEVER.stallionKey) return base;
   return round(base + (FEVER_PEAK_ABNORMAL - base) * morphologyEffect(daysAfterFever(collectedAt)), 3);
 }
+
+/**
+ * Class weights for synthetic field images of a collection with this share of abnormal cells:
+ * normal takes 1 − share, the defect classes split the rest in the proportions of `defectWeights`.
+ */
+export function demoClassWeights(abnormalShare: number, defectWeights: Readonly<Record<string, number>>): Record<string, number> {
+  const defects = Object.keys(defectWeights).filter((k) => k !== 'normal');
+  const total = defects.reduce((s, k) => s + defectWeights[k], 0);
+  return Object.fromEntries([['normal', 1 - abnormalShare], ...defects.map((k) => [k, (abnormalShare * defectWeights[k]) / total])]);
+}
+
+/**
+ * Collections of the fever stallion that seed 08 gives field images and a submitted first read,
+ * by the UTC day nearest to which a collection is picked: before the fever, through its window
+ * (the dip from about day 9, deepest between days 28 and 52) and after it clears (beside the
+ * three of seed 06: 20 April, 10 June, 28 July).
+ */
+export const DEMO_HISTORY_READ_DATES: readonly string[] = Object.freeze([
+  '2026-03-04', '2026-03-25', '2026-04-30', '2026-05-13', '2026-05-25', '2026-06-02', '2026-06-22', '2026-07-06', '2026-07-17',
+]);
 
 // ---------------------------------------------------------------------------
 // Collections

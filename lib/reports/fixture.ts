@@ -84,7 +84,8 @@ export function exampleReportInput(options: ExampleOptions = {}): ReportSnapshot
     cooled: { sizeBillion: DOSE_DEFAULTS.cooled.sizeBillion, basis: DOSE_DEFAULTS.cooled.basis },
     frozen: { sizeBillion: DOSE_DEFAULTS.frozen.sizeBillion, basis: DOSE_DEFAULTS.frozen.basis },
   };
-  const window = spermatogenicWindow('2026-05-04', { spermatogenesisDays: 57, epididymalTransitDays: 10 });
+  // The fever lasted 4–6 May: its window runs 57 + 10 days past its last day (lib/windows/window.ts).
+  const window = spermatogenicWindow('2026-05-04', { spermatogenesisDays: 57, epididymalTransitDays: 10 }, '2026-05-06');
   const isoDay = (d: Date) => d.toISOString().slice(0, 10);
   const dayOfWindow = Math.floor(Date.parse(collectedAt) / DAY_MS) - Math.floor(window.start.getTime() / DAY_MS) + 1;
 
@@ -222,7 +223,7 @@ export function exampleReportInput(options: ExampleOptions = {}): ReportSnapshot
       remarks:
         'Many proximal and distal cytoplasmic droplets and bent tails, as expected three weeks after a febrile illness. Progressive motility is below this stallion’s spring collections.',
       interpretation:
-        'Within the spermatogenic window of the fever of 4 May: the figures are not representative of this stallion’s usual quality. PMMN in the second ejaculate is below the breeding-soundness threshold. Re-evaluate after the window clears (from 10 July 2026).',
+        'Within the spermatogenic window of the fever of 4 May: the figures are not representative of this stallion’s usual quality. PMMN in the second ejaculate is below the breeding-soundness threshold. Re-evaluate after the window clears (from 12 July 2026).',
     },
     people,
     report: {

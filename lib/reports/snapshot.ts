@@ -222,7 +222,7 @@ const healthEventSchema = z.strictObject({
   endedOn: calendarDay.nullable(),
   /** 1 on the event day; the collection's day in the event's spermatogenic window. */
   dayOfWindow: positiveInt,
-  /** Spermatogenesis + epididymal transit, days. */
+  /** Days in the window from the event's start: spermatogenesis + epididymal transit after its last day (lib/windows). */
   windowDays: positiveInt,
   /** First day after the window. */
   windowClearsOn: calendarDay,

@@ -68,3 +68,20 @@ export function labYear(at: Date, tz: string): { year: number; start: Date; end:
   const end = new TZDate(year + 1, 0, 1, 0, 0, 0, tz);
   return { year, start: new Date(start.getTime()), end: new Date(end.getTime()) };
 }
+
+/** The instant in ISO 8601 with the lab's offset, e.g. '2026-05-12T10:35:00.000+01:00' (exports). */
+export function isoInZone(at: Date | string, tz: string): string {
+  return new TZDate(new Date(at).getTime(), tz).toISOString();
+}
+
+/** The instant a lab calendar date ('YYYY-MM-DD') begins in the zone (01:00 where a clock change skips midnight). */
+export function labDateStart(date: string, tz: string): Date {
+  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
+  return new Date(new TZDate(y, m - 1, d, 0, 0, 0, tz).getTime());
+}
+
+/** The instant the lab calendar date after `date` begins: the exclusive end of that day. */
+export function labDateEnd(date: string, tz: string): Date {
+  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
+  return new Date(new TZDate(y, m - 1, d + 1, 0, 0, 0, tz).getTime());
+}

@@ -13,6 +13,13 @@
  *
  * The window is half-open over dates: [start, clears). Day 1 is the event's start date; the
  * last day inside is day `totalDays`; `clears` is the first date after it.
+ *
+ * An event that lasts several days (an illness from 4 to 9 May, a course of treatment) keeps
+ * harming germ cells until its last day, and the cells that were at the earliest stage on that
+ * day reach the ejaculate spermatogenesis + transit later. So the window opens on the start date
+ * and clears spermatogenesis + transit days after the END date (the start date when no end is
+ * given): clears = end + spermatogenesisDays + epididymalTransitDays. A one-day event keeps the
+ * plain 57 + 10 = 67 days; an event of n days gives a window of n − 1 + 67 days.
  */
 import { TZDate } from '@date-fns/tz';
 import { DEFAULT_TIME_ZONE, isTimeZone, labDayKey } from '@/lib/time/lab-time';
@@ -36,6 +43,8 @@ export type LabDate = string;
 export interface SpermatogenicWindow {
   /** Event's start date: day 1, the first day inside. */
   startDate: LabDate;
+  /** Event's last day (its end date, or its start date when it has none). */
+  endDate: LabDate;
   /** Last day inside (day `totalDays`). */
   lastDate: LabDate;
   /** First date after the window: re-evaluate from here. */
@@ -44,8 +53,10 @@ export interface SpermatogenicWindow {
   start: Date;
   /** Instant the clears date begins in the lab's zone. */
   clears: Date;
-  /** spermatogenesisDays + epididymalTransitDays. */
+  /** Days inside the window, day 1 to its last day: (end − start) + spermatogenesis + transit. */
   totalDays: number;
+  /** spermatogenesisDays + epididymalTransitDays: the days after the event's last day. */
+  spermatogenicDays: number;
   timeZone: string;
 }
 
@@ -116,8 +127,11 @@ function checkDays(name: string, days: number): void {
   if (!Number.isInteger(days) || days < 0) throw new RangeError(`${name} must be a whole number of days ≥ 0`);
 }
 
-/** Window for a health event starting on `eventDate`; clears after 57 + 10 = 67 days by default. */
-export function spermatogenicWindow(eventDate: DateInput, settings: WindowSettings = {}): SpermatogenicWindow {
+/**
+ * Window for a health event starting on `eventDate` and, when given, lasting until `endDate`
+ * (inclusive); clears 57 + 10 = 67 days after the event's last day by default.
+ */
+export function spermatogenicWindow(eventDate: DateInput, settings: WindowSettings = {}, endDate?: DateInput | null): SpermatogenicWindow {
   const {
     spermatogenesisDays = SPERMATOGENESIS_DAYS_DEFAULT,
     epididymalTransitDays = EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
@@ -127,15 +141,22 @@ export function spermatogenicWindow(eventDate: DateInput, settings: WindowSettin
   checkDays('epididymalTransitDays', epididymalTransitDays);
   const startDate = labDate(eventDate, timeZone);
   const startDay = dateDayNumber(startDate);
-  const totalDays = spermatogenesisDays + epididymalTransitDays;
-  const clearsDate = dayNumberDate(startDay + totalDays);
+  const lastEventDate = endDate == null ? startDate : labDate(endDate, timeZone);
+  const lastEventDay = dateDayNumber(lastEventDate);
+  if (lastEventDay < startDay) throw new RangeError(`an event cannot end (${lastEventDate}) before it starts (${startDate})`);
+  const spermatogenicDays = spermatogenesisDays + epididymalTransitDays;
+  const clearsDay = lastEventDay + spermatogenicDays;
+  const totalDays = clearsDay - startDay;
+  const clearsDate = dayNumberDate(clearsDay);
   return {
     startDate,
-    lastDate: dayNumberDate(startDay + totalDays - 1),
+    endDate: lastEventDate,
+    lastDate: dayNumberDate(clearsDay - 1),
     clearsDate,
     start: dateStart(startDate, timeZone),
     clears: dateStart(clearsDate, timeZone),
     totalDays,
+    spermatogenicDays,
     timeZone,
   };
 }
@@ -168,8 +189,9 @@ export function classifyCollections<C extends WindowedCollection>(
   eventDate: DateInput,
   collections: readonly C[],
   settings: WindowSettings = {},
+  endDate?: DateInput | null,
 ): Array<C & { position: WindowPosition; dayFromEvent: number; windowDay: number | null }> {
-  const window = spermatogenicWindow(eventDate, settings);
+  const window = spermatogenicWindow(eventDate, settings, endDate);
   const eventDay = dateDayNumber(window.startDate);
   return collections.map((c) => ({
     ...c,
@@ -183,6 +205,8 @@ export interface WindowEvent {
   id: string;
   /** The event's start date (a lab date) or instant. */
   startDate: DateInput;
+  /** Its last day, inclusive (null or omitted: a one-day event, or one still going on as far as is recorded). */
+  endDate?: DateInput | null;
 }
 
 /** An event's window, with the event's id. */
@@ -204,7 +228,7 @@ export interface MergedWindow {
 /** Every event's window, by start date (then event id). */
 export function eventWindows(events: readonly WindowEvent[], settings: WindowSettings = {}): EventWindow[] {
   return events
-    .map((e) => ({ eventId: e.id, ...spermatogenicWindow(e.startDate, settings) }))
+    .map((e) => ({ eventId: e.id, ...spermatogenicWindow(e.startDate, settings, e.endDate) }))
     .sort((a, b) => (a.startDate < b.startDate ? -1 : a.startDate > b.startDate ? 1 : a.eventId < b.eventId ? -1 : a.eventId > b.eventId ? 1 : 0));
 }
 

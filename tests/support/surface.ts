@@ -30,6 +30,7 @@ export const PAGES: Entry[] = [
   { path: '/stallions/new', roles: STAFF },
   { path: '/stallions/[stallion]', roles: STAFF },
   { path: '/stallions/[stallion]/edit', roles: STAFF },
+  { path: '/stallions/[stallion]/history', roles: STAFF },
   { path: '/collections', roles: STAFF },
   { path: '/collections/new', roles: STAFF },
   { path: '/collections/[collection]', roles: STAFF },
@@ -50,9 +51,14 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/stallions', roles: SIGNED_IN },
   { path: '/api/stallions/[stallion]', roles: SIGNED_IN },
   { path: '/api/stallions/[stallion]/testis', roles: STAFF },
+  { path: '/api/stallions/[stallion]/health-events', roles: STAFF },
+  { path: '/api/stallions/[stallion]/history', roles: STAFF },
+  { path: '/api/stallions/[stallion]/export', roles: STAFF },
+  { path: '/api/health-events/[healthEvent]', roles: STAFF },
   { path: '/api/clients', roles: STAFF },
   { path: '/api/clients/[client]', roles: STAFF },
   { path: '/api/collections', roles: STAFF },
+  { path: '/api/collections/export', roles: STAFF },
   { path: '/api/collections/[collection]', roles: STAFF },
   { path: '/api/collections/[collection]/images', roles: STAFF },
   { path: '/api/collections/[collection]/morphology', roles: STAFF },
@@ -67,12 +73,12 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/users', roles: ['lab_manager'] },
 ];
 
-export type DemoIds = Record<'stallion' | 'client' | 'collection' | 'read' | 'image' | 'invitation', string>;
+export type DemoIds = Record<'stallion' | 'client' | 'collection' | 'read' | 'image' | 'invitation' | 'healthEvent', string>;
 
 /**
  * Demo records for the bracketed names, from the seeded database: the fever stallion (owned by
  * the demo client), its owner's client record, a collection of his with field images and a
- * submitted first read, that read, and its first image. The invitation is well-formed and
+ * submitted first read, that read, its first image, and his fever (a health event). The invitation is well-formed and
  * matches none, which shows the page's "cannot be used" state.
  */
 export async function demoIds(db: Knex): Promise<DemoIds> {
@@ -84,7 +90,8 @@ export async function demoIds(db: Knex): Promise<DemoIds> {
     .orderBy('r.id')
     .first('r.id', 'r.collection_id');
   const image = read && (await db('field_images').where({ collection_id: read.collection_id }).orderBy('position').first('id'));
-  if (!stallion || !owner?.client_id || !read || !image) throw new Error('The demo records are missing: run the demo seed (npm test does).');
+  const event = await db('health_events').where({ stallion_id: stallion?.id, kind: 'fever', started_on: DEMO_FEVER.date }).first('id');
+  if (!stallion || !owner?.client_id || !read || !image || !event) throw new Error('The demo records are missing: run the demo seed (npm test does).');
   return {
     stallion: String(stallion.id),
     client: String(owner.client_id),
@@ -92,6 +99,7 @@ export async function demoIds(db: Knex): Promise<DemoIds> {
     read: String(read.id),
     image: String(image.id),
     invitation: 'no-such-invitation-0000000000000000',
+    healthEvent: String(event.id),
   };
 }
 

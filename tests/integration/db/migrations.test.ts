@@ -149,6 +149,17 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       expect(await columns('marks')).not.toEqual(expect.arrayContaining(['is_normal']));
     },
   },
+  '20261220000100_health_events.ts': {
+    tables: ['health_events'],
+    async write() {
+      [ids.healthEvent] = await db('health_events').insert({ stallion_id: ids.stallion, kind: 'fever', started_on: '2026-05-04', ended_on: '2026-05-06', peak_temperature_c: 39.8, notes: 'Keep', recorded_by: ids.user });
+    },
+    async check() {
+      expect(await db('health_events').where({ id: ids.healthEvent }).first('stallion_id', 'kind', 'started_on', 'ended_on', 'peak_temperature_c', 'notes')).toEqual({
+        stallion_id: ids.stallion, kind: 'fever', started_on: '2026-05-04', ended_on: '2026-05-06', peak_temperature_c: 39.8, notes: 'Keep',
+      });
+    },
+  },
 };
 
 describe('migrations', () => {

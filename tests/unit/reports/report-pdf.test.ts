@@ -119,7 +119,7 @@ describe('the PDF of the example report', () => {
     expect(t).toContain('0.78 (substantial, Landis & Koch)');
     expect(t).toContain('82.1 % of 251 paired cells');
     expect(t).toMatch(/2\.6 points; acceptable up to 8\.0/);
-    expect(t).toMatch(/Fever 04 May 2026 – 06 May 2026 day 23 of 67 10 Jul 2026/);
+    expect(t).toMatch(/Fever 04 May 2026 – 06 May 2026 day 23 of 69 12 Jul 2026/);
     expect(t).toContain('Tamsin Reedway');
     expect(t).toContain('Orrin Halvard');
     expect(t).toContain('Dr Maren Kettleby');

@@ -43,8 +43,9 @@ describe('the example report (fixture)', () => {
     // Doses (computed): 2.8215 / 0.5 → 5 fresh; / 1.0 → 2 cooled; 6.27 total / 0.8 → 7 frozen.
     expect(s.semen.doses.map((d) => [d.kind, d.doses])).toEqual([['fresh', 5], ['cooled', 2], ['frozen', 7]]);
     expect(s.breedingSoundness).toMatchObject({ role: 'second', status: 'fail' });
-    // 4 May + 57 + 10 days = 10 July; 26 May is day 23 counting 4 May as day 1 (computed by hand).
-    expect(s.healthEvents[0]).toMatchObject({ windowClearsOn: '2026-07-10', dayOfWindow: 23, windowDays: 67 });
+    // The fever lasted 4–6 May: 6 May + 57 + 10 days = 12 July, 69 days from 4 May; 26 May is day 23
+    // counting 4 May as day 1 (computed by hand).
+    expect(s.healthEvents[0]).toMatchObject({ windowClearsOn: '2026-07-12', dayOfWindow: 23, windowDays: 69 });
     expect(m.defectFrequencies.totalDefects).toBe(226);
   });
 

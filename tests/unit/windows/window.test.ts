@@ -332,3 +332,48 @@ describe('several events', () => {
     expect(reEvaluateFrom(events, {}, new Date('2025-06-26T03:30:00Z'))).toBeNull();
   });
 });
+
+describe('events lasting several days', () => {
+  // A cell at the earliest stage on the illness's last day is still affected and reaches the
+  // ejaculate spermatogenesis + transit later, so the window clears 67 days after the END date
+  // (common practice: the 57-day cycle plus transit is counted from the end of the insult).
+  it('clears 67 days after the last day, and counts its days from the first', () => {
+    // 4 May to 6 May 2026: 6 May + 67 = 12 July (computed: 25 days to 31 May, 30 in June, 12 in July)
+    const w = spermatogenicWindow('2026-05-04', {}, '2026-05-06');
+    expect(w).toMatchObject({ startDate: '2026-05-04', endDate: '2026-05-06', lastDate: '2026-07-11', clearsDate: '2026-07-12', totalDays: 69, spermatogenicDays: 67 });
+    expect(windowDay(w, '2026-05-04')).toBe(1);
+    expect(windowDay(w, '2026-07-11')).toBe(69);
+    expect(windowDay(w, '2026-07-12')).toBeNull();
+    // without the end date the same fever would clear on 10 July (4 May + 67, computed)
+    expect(spermatogenicWindow('2026-05-04').clearsDate).toBe('2026-07-10');
+    // an end on the start date is a one-day event
+    expect(spermatogenicWindow('2026-05-04', {}, '2026-05-04')).toMatchObject({ totalDays: 67, clearsDate: '2026-07-10' });
+  });
+
+  it('takes the end as a lab date too, across a clock change', () => {
+    // Berlin, 28 Mar to 31 Mar 2025 (summer time starts 30 Mar): 31 Mar + 67 = 6 June (computed: 30 in April, 31 in May, 6)
+    const w = spermatogenicWindow('2025-03-28', { timeZone: 'Europe/Berlin' }, new Date('2025-03-31T21:30:00Z')); // 23:30 CEST on 31 Mar
+    expect(w.endDate).toBe('2025-03-31');
+    expect(w.clearsDate).toBe('2025-06-06');
+    expect(iso(w.clears)).toBe('2025-06-05T22:00:00.000Z');
+  });
+
+  it('refuses an end before the start', () => {
+    expect(() => spermatogenicWindow('2026-05-04', {}, '2026-05-03')).toThrow(/before it starts/);
+  });
+
+  it('extends the merged stretch and the flags', () => {
+    const events = [
+      { id: 'illness', startDate: '2025-03-01', endDate: '2025-03-20' },
+      { id: 'fever', startDate: '2025-05-20' },
+    ];
+    // 20 March + 67 days: 11 days to 31 March, 30 in April, 26 in May → 26 May
+    expect(eventWindows(events)[0]).toMatchObject({ clearsDate: '2025-05-26', totalDays: 86 });
+    // the fever starts before the illness's window clears: one stretch to 20 May + 67 = 26 July (computed: 11 + 30 + 26)
+    expect(mergeWindows(eventWindows(events)).map((m) => [m.startDate, m.clearsDate, m.eventIds])).toEqual([['2025-03-01', '2025-07-26', ['illness', 'fever']]]);
+    const r = flagCollections(events, [{ id: 'c', collectedAt: '2025-05-22' }]);
+    // 22 May: day 83 of the illness's window (31 + 30 + 22 = 83, computed) and day 3 of the fever's
+    expect(r[0]!.window!.events.map((e) => [e.eventId, e.windowDay])).toEqual([['illness', 83], ['fever', 3]]);
+    expect(classifyCollections('2025-03-01', [{ id: 'x', collectedAt: '2025-05-25' }], {}, '2025-03-20')[0]).toMatchObject({ position: 'inside', windowDay: 86 });
+  });
+});

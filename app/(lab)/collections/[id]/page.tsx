@@ -8,6 +8,7 @@ import { StartReadButton } from '@/components/reads/start-read-button';
 import { nullIfNotFound } from '@/lib/api/errors';
 import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { FieldImages } from '@/components/images/gallery';
+import { WindowFlag } from '@/components/history/window-flag';
 import { requirePageUser } from '@/lib/auth/session';
 import { READ_KIND_LABELS } from '@/lib/reads/kinds';
 import { figuresBasis, readActionsFor } from '@/lib/reads/policy';
@@ -50,6 +51,8 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
         </div>
         <Link href={`/collections/${c.id}/edit`} className="btn-secondary no-underline hover:no-underline">Edit</Link>
       </div>
+
+      <WindowFlag flag={c.window} />
 
       {s.warnings.length > 0 && (
         <ul aria-label="Warnings" className="space-y-1 rounded-md bg-warn-bg px-4 py-3 text-sm text-warn">

@@ -3,6 +3,8 @@
 import { createColumnHelper } from '@tanstack/react-table';
 import { useMemo, useState } from 'react';
 import { useLabTimeZone } from '@/components/time/lab-clock';
+import { ExportLinks } from '@/components/history/export-links';
+import { WindowFlag } from '@/components/history/window-flag';
 import { DataTable } from '@/components/ui/data-table';
 import type { Collection } from '@/db/queries/collections';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
@@ -31,6 +33,7 @@ const columnsFor = (timeZone: string) => [
     },
   }),
   c.accessor('daysSincePrevious', { id: 'daysSincePrevious', header: 'Days since previous', enableSorting: false, cell: (i) => fmt(i.getValue()) }),
+  c.accessor('window', { id: 'window', header: 'Health-event window', enableSorting: false, cell: (i) => <WindowFlag flag={i.getValue()} compact /> }),
 ];
 
 export function CollectionsTable({ stallions, stallionId }: { stallions?: { id: number; name: string }[]; stallionId?: number }) {
@@ -57,6 +60,9 @@ export function CollectionsTable({ stallions, stallionId }: { stallions?: { id: 
           <div>
             <label htmlFor="filter-to" className="label">To</label>
             <input id="filter-to" type="date" className="input" value={to} onChange={(e) => setTo(e.target.value)} />
+          </div>
+          <div className="flex items-end">
+            <ExportLinks endpoint="/api/collections/export" params={{ stallionId: stallion || undefined, from: from || undefined, to: to || undefined }} label="Export (stallion and dates as chosen)" />
           </div>
         </div>
       )}

@@ -1,15 +1,21 @@
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { TestisForm } from '@/components/forms/testis-form';
+import { ExportLinks } from '@/components/history/export-links';
 import { collectionTimeline } from '@/db/queries/collections';
+import { listHealthEvents } from '@/db/queries/health-events';
+import { getLabSettings } from '@/db/queries/settings';
 import { getStallion } from '@/db/queries/stallions';
 import { listTestisMeasurements } from '@/db/queries/testis';
-import { STAFF_ROLES } from '@/lib/auth/roles';
+import { HEALTH_EVENT_WRITER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
 import { billions, fmt, fmtDate } from '@/lib/format';
 import { compareOutput, ellipsoidVolumeMl, estimateActualDso, predictedDailySpermOutputBillion, scrotalWidthCheck, totalTesticularVolume } from '@/lib/semen/testis';
 import { CollectionsTable } from '../../collections/_components/collections-table';
 import { nullIfNotFound } from '@/lib/api/errors';
+import { labDayKey } from '@/lib/time/lab-time';
+import { reEvaluateFrom } from '@/lib/windows/window';
+import { HealthEvents } from './_components/health-events';
 
 export const metadata = { title: 'Stallion' };
 
@@ -19,7 +25,8 @@ export default async function StallionPage({ params }: { params: Promise<{ id: s
   if (!/^\d+$/.test(id)) notFound();
   const s = await nullIfNotFound(getStallion(user, Number(id)));
   if (!s) notFound();
-  const [measurements, timeline] = await Promise.all([listTestisMeasurements(s.id), collectionTimeline(s.id)]);
+  const [measurements, timeline, events, settings] = await Promise.all([listTestisMeasurements(s.id), collectionTimeline(s.id), listHealthEvents(user, s.id), getLabSettings()]);
+  const reEvaluate = reEvaluateFrom(events.map((e) => ({ id: String(e.id), startDate: e.startedOn, endDate: e.endedOn })), settings);
 
   const rows = measurements.map((m) => {
     const left = m.leftLengthCm != null ? ellipsoidVolumeMl(m.leftLengthCm, m.leftWidthCm!, m.leftHeightCm!) : null;
@@ -43,14 +50,35 @@ export default async function StallionPage({ params }: { params: Promise<{ id: s
         </div>
         <div className="flex gap-2">
           <Link href={`/collections/new?stallionId=${s.id}`} className="btn no-underline hover:no-underline">Record a collection</Link>
+          <Link href={`/stallions/${s.id}/history`} className="btn-secondary no-underline hover:no-underline">History and charts</Link>
           <Link href={`/stallions/${s.id}/edit`} className="btn-secondary no-underline hover:no-underline">Edit</Link>
         </div>
       </div>
 
+      {reEvaluate && (
+        <p role="status" className="rounded-md bg-warn-bg px-4 py-3 text-sm text-warn">
+          <span aria-hidden>⚑ </span>A health event’s spermatogenic window is open: collections until then may not show this stallion’s usual quality. <strong>Re-evaluate from {fmtDate(reEvaluate)}.</strong>
+        </p>
+      )}
+
+      <section aria-labelledby="events-heading" className="card space-y-3">
+        <h2 id="events-heading">Health events</h2>
+        <p className="text-sm text-ink-soft">
+          Each event opens a window from its first day until {settings.spermatogenesisDays} days of spermatogenesis and {settings.epididymalTransitDays} days of epididymal transit after its last day (lab settings):
+          collections inside it are flagged.
+        </p>
+        <HealthEvents stallionId={s.id} events={events} canWrite={HEALTH_EVENT_WRITER_ROLES.includes(user.role)} today={labDayKey(new Date(), settings.timeZone)} />
+        <p className="text-xs text-ink-faint">Figures support, and never replace, a veterinarian’s judgement; treatment and breeding decisions follow local regulations and licensed veterinary practice.</p>
+      </section>
+
       <section aria-labelledby="collections-heading" className="space-y-3">
-        <h2 id="collections-heading">Collections ({s.collections})</h2>
+        <div className="flex flex-wrap items-center justify-between gap-3">
+          <h2 id="collections-heading">Collections ({s.collections})</h2>
+          <ExportLinks endpoint={`/api/stallions/${s.id}/export`} params={{}} label="Export all collections" />
+        </div>
         <CollectionsTable stallionId={s.id} />
       </section>
+
 
       <section aria-labelledby="testis-heading" className="card space-y-4">
         <h2 id="testis-heading">Testicular measurements and daily sperm output</h2>
