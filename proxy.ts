@@ -3,9 +3,10 @@ import { NextResponse, type NextFetchEvent, type NextRequest } from 'next/server
 import { makeNonce, pageSecurityHeaders } from '@/lib/security/headers';
 
 // Pages need a session (API routes answer 401/403 themselves, as JSON, and every page and route
-// checks the role again on the server). Every page gets a Content-Security-Policy with a fresh
-// nonce: Next reads it from the request's policy header and puts it on its own scripts.
-const PUBLIC_PAGES = /^\/(sign-in|invite)(\/|$)/;
+// checks the role again on the server), except sign-in, invitations and the public verification
+// of a report's code. Every page gets a Content-Security-Policy with a fresh nonce: Next reads it
+// from the request's policy header and puts it on its own scripts.
+const PUBLIC_PAGES = /^\/(sign-in|invite|verify)(\/|$)/;
 
 function withPolicy(req: NextRequest): NextResponse {
   const page = pageSecurityHeaders({ nonce: makeNonce(), dev: process.env.NODE_ENV === 'development', appUrl: process.env.APP_URL ?? '' });

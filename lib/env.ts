@@ -40,6 +40,12 @@ const schema = z.object({
   CANDIDATE_LEASE_MS: z.coerce.number().int().min(1000).max(3_600_000).default(120_000),
   CANDIDATE_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(20).default(3),
   CANDIDATE_RETRY_MS: z.coerce.number().int().min(10).max(3_600_000).default(30_000),
+  /** Signed-report PDFs are rendered by a worker in every instance (lib/reports/pdf-jobs.ts); 0 leaves this one out. */
+  REPORT_PDF_WORKER: z.enum(['0', '1']).default('1'),
+  REPORT_PDF_POLL_MS: z.coerce.number().int().min(100).max(600_000).default(2000),
+  REPORT_PDF_LEASE_MS: z.coerce.number().int().min(5000).max(3_600_000).default(120_000),
+  REPORT_PDF_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(50).default(4),
+  REPORT_PDF_RETRY_MS: z.coerce.number().int().min(100).max(3_600_000).default(10_000),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -1,9 +1,12 @@
 import 'server-only';
+import type { Knex } from 'knex';
 import { db } from '@/db/knex';
+import { collectionReport } from '@/db/queries/report-core';
+import { getLabSettings } from '@/db/queries/settings';
 import type { Row } from '@/db/row';
 import type { CurrentUser } from '@/lib/auth/session';
 import { ROLES, type Role } from '@/lib/auth/roles';
-import { FIRST_READ, OPEN, SUBMITTED, type ReadKind } from '@/lib/reads/kinds';
+import { FIRST_READ, OPEN, SECOND_READ, SETTLED_READ, SUBMITTED, type ReadKind } from '@/lib/reads/kinds';
 import { mayViewMarks } from '@/lib/reads/policy';
 import { labYear } from '@/lib/time/lab-time';
 
@@ -112,4 +115,63 @@ export async function userOverview(): Promise<UserOverview> {
     } else deactivated += Number(r.n);
   }
   return { active, deactivated, invitationsOpen };
+}
+
+export type ReadyToSign = { id: number; collectedAt: string; stallion: string; basis: 'settled' | 'single' };
+
+/**
+ * The veterinarian's first work list: collections whose report can be signed now (never signed,
+ * every read submitted, the second read and its settling done where the lab requires it), newest
+ * first. A few candidates are picked in SQL, then each is checked by the report's own readiness.
+ */
+export async function collectionsReadyToSign(limit = 10): Promise<ReadyToSign[]> {
+  const settings = await getLabSettings();
+  const readsOf = (kinds: ReadKind[], status: string) => (q: Knex.QueryBuilder) =>
+    q.select(db.raw('1')).from('reads as r').whereRaw('r.collection_id = k.id').whereIn('r.kind', kinds).where('r.status', status);
+  const candidates: Row[] = await db('collections as k')
+    .join('stallions as s', 's.id', 'k.stallion_id')
+    .whereNull('k.signed_report_id')
+    .whereNotExists((q) => q.select(db.raw('1')).from('report_versions as v').whereRaw('v.collection_id = k.id'))
+    .whereExists(readsOf([FIRST_READ], SUBMITTED))
+    .whereNotExists(readsOf([FIRST_READ, SECOND_READ, SETTLED_READ], OPEN))
+    .modify((q) => {
+      if (settings.secondReadRequired) q.whereExists(readsOf([SECOND_READ, SETTLED_READ], SUBMITTED));
+    })
+    .orderBy('k.collected_at', 'desc')
+    .limit(limit * 2)
+    .select('k.id', 'k.collected_at', 's.name as stallion');
+  const out: ReadyToSign[] = [];
+  for (const c of candidates) {
+    if (out.length >= limit) break;
+    const report = await collectionReport(db, c.id, { settings });
+    if (report.readiness.ready && (report.draft.basis === 'settled' || report.draft.basis === 'single')) {
+      out.push({ id: c.id, collectedAt: new Date(c.collected_at).toISOString(), stallion: c.stallion, basis: report.draft.basis });
+    }
+  }
+  return out;
+}
+
+export type AmendedReport = { reportId: number; collectionId: number; version: number; stallion: string; collectedAt: string; amendedBy: string; amendedAt: string; reason: string };
+
+/** Reports amended and not signed again: the veterinarian's second work list. */
+export async function reportsAmendedNotResigned(limit = 10): Promise<AmendedReport[]> {
+  const rows: Row[] = await db('report_versions as v')
+    .join('collections as k', 'k.id', 'v.collection_id')
+    .join('stallions as s', 's.id', 'k.stallion_id')
+    .join('users as a', 'a.id', 'v.amended_by')
+    .whereNotNull('v.amended_at')
+    .whereNull('v.superseded_by')
+    .orderBy('v.amended_at', 'desc')
+    .limit(limit)
+    .select('v.id', 'v.collection_id', 'v.version', 'v.amended_at', 'v.amend_reason', 'k.collected_at', 's.name as stallion', 'a.name as amended_by');
+  return rows.map((r) => ({
+    reportId: r.id,
+    collectionId: r.collection_id,
+    version: r.version,
+    stallion: r.stallion,
+    collectedAt: new Date(r.collected_at).toISOString(),
+    amendedBy: r.amended_by,
+    amendedAt: new Date(r.amended_at).toISOString(),
+    reason: r.amend_reason,
+  }));
 }

@@ -7,11 +7,12 @@ import type { Row } from '@/db/row';
 import { forbidden, notFound } from '@/lib/api/errors';
 import { HEALTH_EVENT_WRITER_ROLES, isStaff } from '@/lib/auth/roles';
 import type { CurrentUser } from '@/lib/auth/session';
-import { HEALTH_EVENT_KIND_LABELS, describeHealthEvent, type HealthEventKind } from '@/lib/health/kinds';
+import { HEALTH_EVENT_KIND_LABELS, type HealthEventKind } from '@/lib/health/kinds';
 import type { CollectionFlag, HistoryEvent } from '@/lib/history/series';
 import type { ReportHealthEvent } from '@/lib/reports/snapshot';
 import type { LabSettings } from '@/lib/settings/lab-settings';
 import type { HealthEventValues } from '@/lib/validations/health-event';
+import { healthEventsCoveringCollection as eventsCoveringCollection } from './report-core';
 import { eventWindows, flagCollections, reEvaluateFrom, spermatogenicWindow, type LabDate } from '@/lib/windows/window';
 
 /*
@@ -186,33 +187,12 @@ export async function stallionReEvaluateFrom(actor: CurrentUser, stallionId: num
 
 /**
  * The health events whose window covers a collection, in the shape of a report snapshot's
- * `healthEvents` (lib/reports/snapshot.ts), for signing: kind as its label, the particulars
- * (peak temperature, notes) as the description, the collection's day of each window, the
- * window's length and the date it clears. With the lab's current window settings.
+ * `healthEvents`, with the lab's current window settings (db/queries/report-core.ts has the one
+ * implementation, which the demo seed shares).
  */
 export async function healthEventsCoveringCollection(actor: CurrentUser, collectionId: number): Promise<ReportHealthEvent[]> {
   requireStaff(actor);
   const c = await db('collections').where({ id: collectionId }).first('id', 'stallion_id', 'collected_at');
   if (!c) throw notFound('The collection');
-  const [rows, settings] = await Promise.all([
-    db('health_events').where({ stallion_id: c.stallion_id }).orderBy('started_on').orderBy('id').select('id', 'kind', 'started_on', 'ended_on', 'peak_temperature_c', 'notes') as Promise<Row[]>,
-    getLabSettings(),
-  ]);
-  const ws = windowSettings(settings);
-  const collectedAt = new Date(c.collected_at).toISOString();
-  return rows.flatMap((r) => {
-    const [flag] = flagCollections([{ id: String(r.id), startDate: r.started_on, endDate: r.ended_on }], [{ id: 'c', collectedAt }], ws);
-    const covering = flag?.window?.events[0];
-    if (!covering) return [];
-    const w = spermatogenicWindow(r.started_on, ws, r.ended_on);
-    return [{
-      kind: HEALTH_EVENT_KIND_LABELS[r.kind as HealthEventKind],
-      description: describeHealthEvent({ peakTemperatureC: r.peak_temperature_c == null ? null : Number(r.peak_temperature_c), notes: r.notes }),
-      startedOn: r.started_on,
-      endedOn: r.ended_on ?? null,
-      dayOfWindow: covering.windowDay,
-      windowDays: w.totalDays,
-      windowClearsOn: w.clearsDate,
-    }];
-  });
+  return eventsCoveringCollection(db, { stallionId: c.stallion_id, collectedAt: new Date(c.collected_at).toISOString() }, await getLabSettings());
 }

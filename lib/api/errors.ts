@@ -3,7 +3,7 @@ export type ApiIssue = { path: string; message: string };
 /** The one error type route handlers and server code throw; the wrapper maps it to JSON. */
 export class ApiError extends Error {
   constructor(
-    public status: 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429 | 500 | 503,
+    public status: 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429 | 500 | 502 | 503,
     public code: string,
     message: string,
     public issues?: ApiIssue[],

@@ -6,6 +6,7 @@ import { asSentenceEnd, BodyTooLarge, crossSiteRefusal, isJsonContentType, readL
 import { getRequestUser, type CurrentUser } from '@/lib/auth/session';
 import type { Role } from '@/lib/auth/roles';
 import { env } from '@/lib/env';
+import { lockRefusal } from '@/lib/reports/lock';
 
 type Schema = z.ZodType;
 type Infer<S> = S extends z.ZodType ? z.infer<S> : undefined;
@@ -91,7 +92,8 @@ async function jsonBody(req: Request): Promise<unknown> {
  * Every route handler goes through this: a state-changing request from another site's page
  * (403), session (401), role (403), zod checks of params, query and body (422; a body must be
  * application/json, 415, and within JSON_BODY_LIMIT_KB, 413), and error mapping (no stack traces
- * leave the server).
+ * leave the server; the database's refusal of a change to a signed report's collection is 409
+ * "signed report").
  */
 export function route<P extends Schema | undefined = undefined, Q extends Schema | undefined = undefined, B extends Schema | undefined = undefined>(
   opts: Options<P, Q, B>,
@@ -111,6 +113,9 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
       return jsonResponse(result ?? { ok: true });
     } catch (err) {
       if (err instanceof ApiError) return errorResponse(err);
+      // The database's signed-report lock (one check for every write path): 409, not a 500.
+      const locked = lockRefusal(err);
+      if (locked) return errorResponse(locked);
       console.error('[fieldmark] route error', req.method, req.nextUrl.pathname, err);
       return errorResponse(new ApiError(500, 'server_error', 'Something went wrong on the server; nothing was changed. Try again, and tell the lab manager if it persists.'));
     }

@@ -27,10 +27,16 @@ export function navFor(role: Role): NavItem[] {
     { href: '/dashboard', label: 'Dashboard' },
     { href: '/stallions', label: 'Stallions' },
     { href: '/collections', label: 'Collections' },
+    { href: '/reports', label: 'Reports' },
     { href: '/clients', label: 'Clients' },
   ];
   if (role === 'lab_manager') {
-    items.push({ href: '/admin/users', label: 'Users' }, { href: '/admin/class-sets', label: 'Class sets' }, { href: '/admin/settings', label: 'Lab settings' });
+    items.push(
+      { href: '/admin/users', label: 'Users' },
+      { href: '/admin/class-sets', label: 'Class sets' },
+      { href: '/admin/settings', label: 'Lab settings' },
+      { href: '/admin/audit', label: 'Audit log' },
+    );
   }
   items.push({ href: '/help', label: 'Help and safety' });
   return items;

@@ -4,7 +4,8 @@ import { env } from '@/lib/env';
 
 let transport: Transporter | undefined;
 
-function getTransport(): Transporter {
+/** The relay from the environment (the local sink in development and tests, a real relay by configuration). */
+export function relay(): Transporter {
   if (!transport) {
     const e = env();
     transport = nodemailer.createTransport({
@@ -19,8 +20,21 @@ function getTransport(): Transporter {
   return transport;
 }
 
-export type Mail = { to: string; subject: string; text: string; html?: string; attachments?: { filename: string; content: Buffer }[] };
+export type Mail = {
+  to: string;
+  subject: string;
+  text: string;
+  html?: string;
+  attachments?: { filename: string; content: Buffer; contentType?: string }[];
+};
 
-export async function sendMail(mail: Mail): Promise<void> {
-  await getTransport().sendMail({ from: env().MAIL_FROM, ...mail });
+/** What the relay answered: its SMTP reply and the addresses it accepted and refused. */
+export type MailAnswer = { messageId: string | null; response: string; accepted: string[]; rejected: string[] };
+
+const addresses = (list: unknown): string[] => (Array.isArray(list) ? list.map((a) => (typeof a === 'string' ? a : String((a as { address?: string }).address ?? a))) : []);
+
+/** Sends one message; rejects when the relay refuses it outright (its SMTP error is on the error's `response`). */
+export async function sendMail(mail: Mail, via: Transporter = relay()): Promise<MailAnswer> {
+  const info = await via.sendMail({ from: env().MAIL_FROM, ...mail });
+  return { messageId: info.messageId ?? null, response: String(info.response ?? ''), accepted: addresses(info.accepted), rejected: addresses(info.rejected) };
 }

@@ -21,6 +21,14 @@ export const labSettingsSchema = z.object({
   epididymalTransitDays: int('Epididymal transit', 0, 30),
   unscaledMicronsPerPixel: num('Pixel size for images without a scale', 0.01, 5),
   timeZone: z.string().trim().refine(isTimeZone, 'Unknown time zone — choose one from the list (e.g. Europe/London, America/New_York).'),
+  /**
+   * "Second read required before a report" (default on): a report is signed only from a settled
+   * read. Off, a collection read once may be reported from that single read, and the report says so.
+   */
+  secondReadRequired: z.boolean({ error: 'Say whether a second read is required.' }).default(true),
+  /** The lab's name and address as the signed reports print them; a report cannot be signed without the name. */
+  labName: z.string().trim().max(200, 'The lab’s name is limited to 200 characters.').default(''),
+  labAddress: z.string().trim().max(200, 'The address is limited to 200 characters.').default(''),
 });
 export type LabSettings = z.infer<typeof labSettingsSchema>;
 
@@ -36,10 +44,13 @@ export const LAB_SETTINGS_DEFAULTS: LabSettings = {
   epididymalTransitDays: EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
   unscaledMicronsPerPixel: 0.25,
   timeZone: DEFAULT_TIME_ZONE,
+  secondReadRequired: true,
+  labName: '',
+  labAddress: '',
 };
 
-/** The numeric settings, each with its unit and the source of its default (the time zone has its own field). */
-export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone'>; label: string; unit: string; source: string }[] = [
+/** The numeric settings, each with its unit and the source of its default (the time zone, the second-read rule and the lab's name have their own fields). */
+export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone' | 'secondReadRequired' | 'labName' | 'labAddress'>; label: string; unit: string; source: string }[] = [
   { key: 'freshDoseBillion', label: 'Fresh insemination dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.fresh.source },
   { key: 'cooledDoseBillion', label: 'Cooled-shipped dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.cooled.source },
   { key: 'frozenDoseBillion', label: 'Frozen dose', unit: '10^9 total sperm', source: DOSE_DEFAULTS.frozen.source },

@@ -6,7 +6,7 @@
 // tests/integration/surface/staff-pages-rsc.test.ts (no staff page data reaches a client).
 //
 // Paths name demo records in brackets — [stallion], [collection], [read], [image], [client],
-// [invitation] — which demoIds() looks up in the seeded database at test time.
+// [invitation], [report], [code] — which demoIds() looks up in the seeded database at test time.
 import type { Knex } from 'knex';
 import type { Role } from '../../lib/auth/roles';
 import { DEMO_CLIENT_USER_EMAIL, DEMO_FEVER } from '../../lib/demo/scenario';
@@ -25,6 +25,10 @@ export const PAGES: Entry[] = [
   { path: '/help', roles: SIGNED_IN },
   { path: '/no-access', roles: SIGNED_IN },
   { path: '/portal', roles: ['client'] },
+  { path: '/portal/stallions/[stallion]', roles: ['client'] },
+  { path: '/portal/reports/[report]', roles: ['client'] },
+  { path: '/verify', roles: EVERYONE },
+  { path: '/verify/[code]', roles: EVERYONE },
   { path: '/dashboard', roles: STAFF },
   { path: '/stallions', roles: STAFF },
   { path: '/stallions/new', roles: STAFF },
@@ -35,12 +39,16 @@ export const PAGES: Entry[] = [
   { path: '/collections/new', roles: STAFF },
   { path: '/collections/[collection]', roles: STAFF },
   { path: '/collections/[collection]/edit', roles: STAFF },
+  { path: '/collections/[collection]/report', roles: STAFF },
+  { path: '/reports', roles: STAFF },
+  { path: '/reports/[report]', roles: STAFF },
   { path: '/clients', roles: STAFF },
   { path: '/clients/[client]', roles: STAFF },
   { path: '/reads/[read]', roles: STAFF },
   { path: '/admin/users', roles: ['lab_manager'] },
   { path: '/admin/class-sets', roles: ['lab_manager'] },
   { path: '/admin/settings', roles: ['lab_manager'] },
+  { path: '/admin/audit', roles: ['lab_manager'] },
 ];
 
 export const GET_ROUTES: Entry[] = [
@@ -63,6 +71,11 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/collections/[collection]/images', roles: STAFF },
   { path: '/api/collections/[collection]/morphology', roles: STAFF },
   { path: '/api/collections/[collection]/reads', roles: STAFF },
+  { path: '/api/collections/[collection]/report', roles: STAFF },
+  { path: '/api/reports', roles: SIGNED_IN },
+  { path: '/api/reports/[report]', roles: SIGNED_IN },
+  { path: '/api/reports/[report]/pdf', roles: SIGNED_IN },
+  { path: '/api/audit', roles: ['lab_manager'] },
   { path: '/api/reads/[read]', roles: STAFF },
   { path: '/api/images/[image]/thumb', roles: STAFF },
   { path: '/api/images/[image]/display', roles: STAFF },
@@ -73,12 +86,13 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/users', roles: ['lab_manager'] },
 ];
 
-export type DemoIds = Record<'stallion' | 'client' | 'collection' | 'read' | 'image' | 'invitation' | 'healthEvent', string>;
+export type DemoIds = Record<'stallion' | 'client' | 'collection' | 'read' | 'image' | 'invitation' | 'healthEvent' | 'report' | 'code', string>;
 
 /**
  * Demo records for the bracketed names, from the seeded database: the fever stallion (owned by
  * the demo client), its owner's client record, a collection of his with field images and a
- * submitted first read, that read, its first image, and his fever (a health event). The invitation is well-formed and
+ * submitted first read, that read, its first image, his fever (a health event), and the newest current
+ * signed report of his (with its PDF stored) and its verification code. The invitation is well-formed and
  * matches none, which shows the page's "cannot be used" state.
  */
 export async function demoIds(db: Knex): Promise<DemoIds> {
@@ -91,7 +105,15 @@ export async function demoIds(db: Knex): Promise<DemoIds> {
     .first('r.id', 'r.collection_id');
   const image = read && (await db('field_images').where({ collection_id: read.collection_id }).orderBy('position').first('id'));
   const event = await db('health_events').where({ stallion_id: stallion?.id, kind: 'fever', started_on: DEMO_FEVER.date }).first('id');
-  if (!stallion || !owner?.client_id || !read || !image || !event) throw new Error('The demo records are missing: run the demo seed (npm test does).');
+  const report = await db('report_versions as v')
+    .join('collections as c', 'c.id', 'v.collection_id')
+    .where('c.stallion_id', stallion?.id)
+    .whereNull('v.superseded_by')
+    .whereNull('v.amended_at')
+    .whereNotNull('v.pdf_sha256')
+    .orderBy('v.id', 'desc')
+    .first('v.id', 'v.verification_code');
+  if (!stallion || !owner?.client_id || !read || !image || !event || !report) throw new Error('The demo records are missing: run the demo seed (npm test does).');
   return {
     stallion: String(stallion.id),
     client: String(owner.client_id),
@@ -100,6 +122,8 @@ export async function demoIds(db: Knex): Promise<DemoIds> {
     image: String(image.id),
     invitation: 'no-such-invitation-0000000000000000',
     healthEvent: String(event.id),
+    report: String(report.id),
+    code: report.verification_code,
   };
 }
 

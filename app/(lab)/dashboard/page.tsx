@@ -1,5 +1,5 @@
 import Link from 'next/link';
-import { collectionsAwaitingFirstRead, fileCounts, readsInProgress, seasonOverview, userOverview } from '@/db/queries/dashboard';
+import { collectionsAwaitingFirstRead, collectionsReadyToSign, fileCounts, readsInProgress, reportsAmendedNotResigned, seasonOverview, userOverview } from '@/db/queries/dashboard';
 import { getLabSettings } from '@/db/queries/settings';
 import { countOf, fmtDate, fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
@@ -39,12 +39,15 @@ export default async function DashboardPage() {
   const { timeZone } = await getLabSettings();
   const reader = mayRead(user.role);
   const manager = user.role === 'lab_manager';
-  const [season, files, waiting, inProgress, users] = await Promise.all([
+  const vet = user.role === 'veterinarian';
+  const [season, files, waiting, inProgress, users, toSign, amended] = await Promise.all([
     seasonOverview(timeZone),
     fileCounts(),
     reader ? collectionsAwaitingFirstRead() : Promise.resolve([]),
     reader ? readsInProgress(user) : Promise.resolve([]),
     manager ? userOverview() : Promise.resolve(null),
+    vet ? collectionsReadyToSign() : Promise.resolve([]),
+    vet ? reportsAmendedNotResigned() : Promise.resolve([]),
   ]);
   const seasonLabel = season ? `Season ${season.year}, ${fmtDate(season.from, timeZone)} – ${fmtDate(season.to, timeZone)}` : 'No collections recorded yet';
 
@@ -112,10 +115,42 @@ export default async function DashboardPage() {
           reads are part of Fieldmark.
         </Upcoming>
       )}
-      {user.role === 'veterinarian' && (
-        <Upcoming id="to-sign" title="Reports to sign">
-          Morphology reports ready for your sign-off, and amended reports not yet signed again, will be listed here once sign-off is part of Fieldmark.
-        </Upcoming>
+      {vet && (
+        <section aria-labelledby="to-sign" className="card space-y-3">
+          <h2 id="to-sign">Reports to sign</h2>
+          <div className="grid gap-4 lg:grid-cols-2">
+            <section aria-labelledby="ready-to-sign">
+              <h3 id="ready-to-sign" className="mb-1 font-medium">Ready to sign</h3>
+              {toSign.length === 0 ? (
+                <p className="text-sm text-ink-soft">No collection is waiting for your sign-off.</p>
+              ) : (
+                <ul className="divide-y divide-line text-sm">
+                  {toSign.map((c) => (
+                    <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
+                      <Link href={`/collections/${c.id}/report`}>{c.stallion} · {fmtDateTime(c.collectedAt, timeZone)}</Link>
+                      <span className="text-ink-soft">{c.basis === 'settled' ? 'settled read' : 'single read'}</span>
+                    </li>
+                  ))}
+                </ul>
+              )}
+            </section>
+            <section aria-labelledby="amended">
+              <h3 id="amended" className="mb-1 font-medium">Amended, not signed again</h3>
+              {amended.length === 0 ? (
+                <p className="text-sm text-ink-soft">No amended report is waiting.</p>
+              ) : (
+                <ul className="divide-y divide-line text-sm">
+                  {amended.map((r) => (
+                    <li key={r.reportId} className="space-y-0.5 py-2">
+                      <Link href={`/collections/${r.collectionId}/report`}>{r.stallion} · {fmtDateTime(r.collectedAt, timeZone)}</Link>
+                      <span className="block text-ink-soft">Version {r.version} amended by {r.amendedBy}, {fmtDate(r.amendedAt, timeZone)}: {r.reason}</span>
+                    </li>
+                  ))}
+                </ul>
+              )}
+            </section>
+          </div>
+        </section>
       )}
 
       {manager && users && (

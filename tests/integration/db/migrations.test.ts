@@ -160,6 +160,44 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       });
     },
   },
+  '20261224000100_reports.ts': {
+    tables: ['report_drafts', 'report_pdf_jobs', 'report_sendings', 'report_versions'],
+    async write() {
+      [ids.report] = await db('report_versions').insert({
+        collection_id: ids.collection, version: 1, snapshot: JSON.stringify({ schemaVersion: 1, kept: true }), verification_code: '0000-0000-0000-0000-0000',
+        signed_by: ids.user, signed_at: new Date('2026-05-02T10:00:00Z'),
+      });
+      await db('report_pdf_jobs').insert({ report_id: ids.report, status: 'failed', attempts: 4, error: 'kept' });
+      await db('report_drafts').insert({ collection_id: ids.collection, remarks: 'Kept remark', updated_by: ids.user });
+      await db('report_sendings').insert({ report_id: ids.report, recipient: 'keep@quillfield.example', status: 'failed', relay_response: '550 kept', sent_by: ids.user });
+      await db('collections').where({ id: ids.collection }).update({ signed_report_id: ids.report });
+    },
+    async check() {
+      expect(json((await db('report_versions').where({ id: ids.report }).first()).snapshot)).toEqual({ schemaVersion: 1, kept: true });
+      expect(await db('report_pdf_jobs').where({ report_id: ids.report }).first('status', 'error')).toEqual({ status: 'failed', error: 'kept' });
+      expect(await db('report_drafts').where({ collection_id: ids.collection }).first('remarks')).toEqual({ remarks: 'Kept remark' });
+      expect(await db('report_sendings').where({ report_id: ids.report }).first('relay_response')).toEqual({ relay_response: '550 kept' });
+      expect(await db('collections').where({ id: ids.collection }).first('signed_report_id')).toEqual({ signed_report_id: ids.report });
+    },
+  },
+  '20261224000200_signed_report_lock.ts': {
+    tables: [],
+    async write() {
+      // Nothing new to write: the lock is on the collection the last step signed.
+    },
+    async check() {
+      // While the triggers exist the signed collection refuses a change; without them (stepped down) it takes it.
+      const [rows] = await db.raw("SELECT COUNT(*) AS n FROM information_schema.triggers WHERE trigger_schema = DATABASE() AND trigger_name = 'collections_signed_report_bu'");
+      const locked = Number((rows as { n: number }[])[0]!.n) === 1;
+      const trx = await db.transaction();
+      try {
+        const outcome = await trx('collections').where({ id: ids.collection }).update({ remarks: 'changed' }).then(() => 'allowed', (e: { sqlMessage?: string }) => e.sqlMessage?.split(':')[0]);
+        expect(outcome).toBe(locked ? 'signed report' : 'allowed');
+      } finally {
+        await trx.rollback();
+      }
+    },
+  },
 };
 
 describe('migrations', () => {

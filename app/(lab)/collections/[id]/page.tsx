@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { collectionsAround, getCollection } from '@/db/queries/collections';
 import { morphologyForCollection } from '@/db/queries/morphology';
+import { collectionReportState } from '@/db/queries/reports';
 import { getLabSettings } from '@/db/queries/settings';
 import { MorphologySummary } from '@/components/reads/morphology-summary';
 import { StartReadButton } from '@/components/reads/start-read-button';
@@ -26,10 +27,17 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
   if (!/^\d+$/.test(id)) notFound();
   const c = await nullIfNotFound(getCollection(user, Number(id)));
   if (!c) notFound();
-  const [settings, around, reads] = await Promise.all([getLabSettings(), collectionsAround(c.stallionId, new Date(c.collectedAt)), morphologyForCollection(user, c.id)]);
+  const [settings, around, reads, report] = await Promise.all([
+    getLabSettings(),
+    collectionsAround(c.stallionId, new Date(c.collectedAt)),
+    morphologyForCollection(user, c.id),
+    collectionReportState(c.id),
+  ]);
+  // While a signed report locks the collection, the database refuses every change; the page offers none.
+  const locked = report.state === 'signed';
   const basis = figuresBasis(reads);
   const normalPct = basis?.read.morphology.pctNormal ?? null;
-  const actions = readActionsFor(user, reads.map((r) => ({ id: r.readId, kind: r.kind, status: r.status, readerId: r.readerId })));
+  const actions = locked ? [] : readActionsFor(user, reads.map((r) => ({ id: r.readId, kind: r.kind, status: r.status, readerId: r.readerId })));
   const s = summariseCollection(c, settings, normalPct);
   const bse = soundnessForCollection(
     c.id,
@@ -49,10 +57,25 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
             {c.collectedBy ? ` · collected by ${c.collectedBy}` : ''}
           </p>
         </div>
-        <Link href={`/collections/${c.id}/edit`} className="btn-secondary no-underline hover:no-underline">Edit</Link>
+        {!locked && <Link href={`/collections/${c.id}/edit`} className="btn-secondary no-underline hover:no-underline">Edit</Link>}
       </div>
 
       <WindowFlag flag={c.window} />
+
+      <section aria-labelledby="report-heading" className="card flex flex-wrap items-center justify-between gap-3">
+        <div>
+          <h2 id="report-heading">Report</h2>
+          <p className="text-sm" data-testid="collection-report-state">
+            {report.state === 'draft' && 'Draft — not signed yet.'}
+            {report.state === 'signed' && <>Signed, version {report.version}. The collection’s records, reads, marks and images are locked; an amendment unlocks them.</>}
+            {report.state === 'amended' && <>Amended: version {report.version} is withdrawn for correction and the collection is open again until the report is signed again.</>}
+          </p>
+        </div>
+        <div className="flex gap-2">
+          {report.reportId && <Link href={`/reports/${report.reportId}`} className="btn-secondary no-underline hover:no-underline">Signed version {report.version}</Link>}
+          <Link href={`/collections/${c.id}/report`} className="btn no-underline hover:no-underline">{report.state === 'signed' ? 'Report' : 'Report and sign-off'}</Link>
+        </div>
+      </section>
 
       {s.warnings.length > 0 && (
         <ul aria-label="Warnings" className="space-y-1 rounded-md bg-warn-bg px-4 py-3 text-sm text-warn">
@@ -142,7 +165,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
 
       <section aria-labelledby="images-heading" className="space-y-3">
         <h2 id="images-heading">Field images</h2>
-        <FieldImages collectionId={c.id} canUpload={READER_ROLES.includes(user.role)} defaults={{ magnification: c.magnification, optics: c.optics }} />
+        <FieldImages collectionId={c.id} canUpload={!locked && READER_ROLES.includes(user.role)} defaults={{ magnification: c.magnification, optics: c.optics }} />
       </section>
 
       <section aria-labelledby="bse" className="card">

@@ -21,6 +21,22 @@ export function SettingsForm({ initial, defaults, timeZones }: { initial: LabSet
 
   return (
     <form onSubmit={form.handleSubmit(onSubmit)} noValidate className="card space-y-4">
+      <Field id="labName" label="Lab name (printed on signed reports)" error={e.labName?.message as string | undefined} hint="Reports cannot be signed until the lab’s name is set.">
+        <input id="labName" className="input max-w-md" {...describedBy('labName', e.labName?.message as string | undefined)} {...form.register('labName')} />
+      </Field>
+      <Field id="labAddress" label="Lab address (printed on signed reports)" error={e.labAddress?.message as string | undefined} hint="One line; optional.">
+        <input id="labAddress" className="input max-w-md" {...describedBy('labAddress', e.labAddress?.message as string | undefined)} {...form.register('labAddress')} />
+      </Field>
+      <div>
+        <label className="flex items-center gap-2 text-sm font-medium">
+          <input type="checkbox" aria-describedby="secondReadRequired-hint" {...form.register('secondReadRequired')} />
+          Second read required before a report
+        </label>
+        <p id="secondReadRequired-hint" className="mt-1 text-xs text-ink-faint">
+          On (default): a report is signed from the settled read of a first and a blind second read. Off: a collection read once may be reported from
+          that single read, and the report says so. Fieldmark default; a lab’s own quality rule.
+        </p>
+      </div>
       {LAB_SETTINGS_FIELDS.map((f) => {
         const error = e[f.key]?.message as string | undefined;
         return (
