@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import type { ReadMorphology } from '@/db/queries/morphology';
 import { fmt } from '@/lib/format';
-import { OPEN, READ_KIND_LABELS, READ_STATUS_LABELS, SUBMITTED } from '@/lib/reads/kinds';
+import { OPEN, READ_STATUS_LABELS, SUBMITTED, readLabel } from '@/lib/reads/kinds';
 
 /** Per-read figures of a collection, straight from the morphology engine (server component). */
 export function MorphologySummary({ reads }: { reads: ReadMorphology[] }) {
@@ -10,7 +10,7 @@ export function MorphologySummary({ reads }: { reads: ReadMorphology[] }) {
     <div className="grid gap-4 lg:grid-cols-2">
       {reads.map((r) => {
         const m = r.morphology;
-        const label = READ_KIND_LABELS[r.kind];
+        const label = readLabel(r);
         const defects = new Map(m.defectFrequency.perClass.map((d) => [d.classId, d]));
         const tagged = m.defectFrequency.totalDefects > m.abnormalCount;
         return (
