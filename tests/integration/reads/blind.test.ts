@@ -24,8 +24,8 @@ let secondMarks: string[];
 let firstId: number;
 let secondId: number;
 
-// The collection is the newest on record, so the first page of every list shows it.
-const COLLECTED_AT = '2026-11-30T09:00:00.000Z';
+// The collection is the newest of the demo season, so the first page of every list shows it.
+const COLLECTED_AT = '2026-07-31T20:00:00.000Z';
 
 beforeAll(async () => {
   [tech, reader, vet] = await Promise.all([signedIn(USERS.tech), signedIn(USERS.reader), signedIn(USERS.vet)]);

@@ -49,6 +49,14 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
   const hidden = allReads.filter((r) => !r.visible);
   const blind = allReads.some((r) => r.kind === SECOND_READ && r.status === OPEN && r.readerId === user.id);
   const classNames = new Map(reads.flatMap((r) => r.morphology.cells.perClass.map((p) => [p.classId, p.name] as const)));
+  const basisLabel =
+    basis?.basis === 'settled'
+      ? 'settled read'
+      : !agreement
+        ? 'first read (not yet checked by a second reader)'
+        : agreement.disagreements === 0
+          ? 'first read (the second read agrees with it cell for cell)'
+          : `first read (checked by a second reader; ${agreement.disagreements} disagreement${agreement.disagreements === 1 ? '' : 's'} not settled yet)`;
   const actionLabel = (a: ReadAction) =>
     a.action === 'continue' ? `Continue ${READ_KIND_LABELS[a.kind].toLowerCase()}` : a.kind === SECOND_READ && a.recount ? 'Start a recount (further second read)' : `Start ${READ_KIND_LABELS[a.kind].toLowerCase()}`;
   const s = summariseCollection(c, settings, normalPct);
@@ -132,7 +140,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
                   <>
                     {billions(s.totals.pmmnBillion)}
                     <span className="block text-xs text-ink-faint">
-                      at {fmt(normalPct)} % normal from the {basis?.basis === 'settled' ? 'settled read' : 'first read (not yet checked by a second reader)'}
+                      at {fmt(normalPct)} % normal from the {basisLabel}
                     </span>
                   </>
                 )}
