@@ -40,8 +40,9 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  // Leave no open second read behind for other tests' lists.
+  // Leave no open second read behind for other tests' lists, and no figures a later run of this test would find.
   await testDb()('reads').where({ id: secondId }).update({ status: 'submitted', submitted_at: new Date() });
+  await testDb()('marks').whereIn('read_id', [firstId, secondId]).update({ deleted: true });
 });
 
 const TREE = encodeURIComponent(JSON.stringify(['', { children: ['(lab)', { children: ['elsewhere', { children: ['__PAGE__', {}] }] }] }]));
@@ -91,7 +92,12 @@ const SECOND = () => ({ marks: secondMarks, shown: '47.8', raw: '47.826', cells:
 
 describe('a blind second read, walked over every page and GET route', () => {
   it('gives the second reader nothing of the first read, but their own read', async () => {
-    const extra = [`/api/collections?stallionId=${ids.stallion}`, `/api/reads/${secondId}`, `/reads/${secondId}`, '/api/collections?sort=collectedAt&dir=desc'];
+    const name = (await testDb()('stallions').where({ id: Number(ids.stallion) }).first('name')).name as string;
+    // The list's search too, and the stallion's history over the whole season.
+    const extra = [
+      `/api/collections?stallionId=${ids.stallion}`, `/api/collections?q=${encodeURIComponent(name)}`, `/api/reads/${secondId}`, `/reads/${secondId}`,
+      '/api/collections?sort=collectedAt&dir=desc', `/api/stallions/${ids.stallion}/history?from=2026-01-01&to=2026-12-31`, `/api/stallions/${ids.stallion}/export?from=2026-01-01&to=2026-12-31`,
+    ];
     const responses = await walk(reader, 'technician', extra);
     expect(responses.filter((r) => r.status >= 500).map((r) => `${r.what}: ${r.status}`)).toEqual([]);
     expect(leaks(responses, FIRST())).toEqual([]);
