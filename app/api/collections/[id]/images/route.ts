@@ -4,7 +4,7 @@ import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { idParams } from '@/lib/validations/common';
 import { collectionScaleSchema, uploadQuery } from '@/lib/validations/image';
 
-export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ params }) => ({ images: await listImages(params.id) }));
+export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ user, params }) => ({ images: await listImages(user, params.id) }));
 
 /** One file per request, sent as the raw body (streamed to disk, never held whole in memory). */
 export const POST = route({ roles: READER_ROLES, params: idParams, query: uploadQuery }, async ({ req, user, params, query }) => {
