@@ -39,25 +39,28 @@ export const WalkBar = memo(function WalkBar({
         ? 'No found cells on this image (the search failed; see the collection’s images).'
         : `${openOnImage} found cell${openOnImage === 1 ? '' : 's'} not yet judged on this image`;
   return (
-    <div className="flex flex-wrap items-center gap-x-3 gap-y-1.5 text-sm" role="group" aria-label="Found cells">
-      <label className="flex items-center gap-1.5">
-        <input type="checkbox" checked={shown} onChange={onToggleShown} />
-        Show found cells
-      </label>
-      {shown && canEdit && (
-        <>
-          <button type="button" className={walking ? 'btn py-1' : 'btn-secondary py-1'} aria-pressed={walking} aria-keyshortcuts="W" onClick={onToggleWalk}>
-            {walking ? `Stop ${WALK_NAME.toLowerCase()}` : WALK_NAME}
-          </button>
-          {walking && (
-            <button type="button" className="btn-secondary py-1" aria-keyshortcuts="X" onClick={onSkip}>
-              Not a cell
+    <div className="space-y-1 text-sm" role="group" aria-label="Found cells">
+      <div className="flex flex-wrap items-center gap-x-3 gap-y-1.5">
+        <label className="flex items-center gap-1.5">
+          <input type="checkbox" checked={shown} onChange={onToggleShown} />
+          Show found cells
+        </label>
+        {shown && canEdit && (
+          <>
+            <button type="button" className={walking ? 'btn py-1' : 'btn-secondary py-1'} aria-pressed={walking} aria-keyshortcuts="W" onClick={onToggleWalk}>
+              {walking ? `Stop ${WALK_NAME.toLowerCase()}` : WALK_NAME}
             </button>
-          )}
-        </>
-      )}
+            {walking && (
+              <button type="button" className="btn-secondary py-1" aria-keyshortcuts="X" onClick={onSkip}>
+                Not a cell
+              </button>
+            )}
+          </>
+        )}
+      </div>
+      {/* Its own line, so the canvas does not move when the walk's buttons come and go. */}
       {shown && (
-        <p className="text-ink-soft tabular-nums" data-testid="candidate-status" aria-live="off">
+        <p className="text-ink-soft tabular-nums" data-testid="candidate-status">
           {imageText} · {openInRead} in the read{searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.
         </p>
       )}

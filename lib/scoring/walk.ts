@@ -17,8 +17,12 @@ import type { Point } from './types';
 export const HEAD_LENGTH_UM = 6;
 /** A head's length in pixels on an image with no scale (6 µm at 0.25 µm per pixel, the synthetic fields' scale). */
 export const HEAD_LENGTH_PX_FALLBACK = 24;
-/** The walk's zoom shows about this many head lengths across the view's short side. */
-export const WALK_VIEW_HEADS = 14;
+/**
+ * The walk's zoom shows about this many head lengths across the view's short side: 24 × 6 µm =
+ * 144 µm, about twice a whole stallion sperm cell (~60 µm, from memory), so the reader sees the
+ * cell in the ring with its tail and a little of what lies around it.
+ */
+export const WALK_VIEW_HEADS = 24;
 
 export function headLengthPx(micronsPerPixel: number | null | undefined): number {
   return micronsPerPixel && micronsPerPixel > 0 ? HEAD_LENGTH_UM / micronsPerPixel : HEAD_LENGTH_PX_FALLBACK;

@@ -58,6 +58,9 @@ describe('skipped candidates', () => {
     const payload = await tech.json(`/api/reads/${readId}`);
     expect(payload.body.marks).toEqual([]);
     expect(payload.body.skips).toEqual([{ id, imageId, x: 200, y: 150, skip: true, version: 3 }]);
+    // An image with skips but no marks can still be deleted: its skips go with it.
+    expect((await tech.json(`/api/images/${imageId}`, 'DELETE')).status).toBe(200);
+    expect(await testDb()('candidate_skips').where({ id })).toHaveLength(0);
   });
 
   it('applies a resent change once, also beside marks in one batch', async () => {

@@ -159,8 +159,8 @@ describe('the walk', () => {
     expect(nextStop([], 0)).toBeNull();
   });
 
-  it('zooms so that about 14 head lengths span the view’s short side', () => {
-    expect(walkScale(1200, 672, 24)).toBeCloseTo(2, 10);
+  it('zooms so that about 24 head lengths span the view’s short side', () => {
+    expect(walkScale(1200, 576, 24)).toBeCloseTo(1, 10);
   });
 });
 
