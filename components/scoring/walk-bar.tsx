@@ -59,11 +59,13 @@ export const WalkBar = memo(function WalkBar({
         )}
       </div>
       {/* Its own line, so the canvas does not move when the walk's buttons come and go. */}
-      {shown && (
+      {shown && canEdit && (
         <p className="text-ink-soft tabular-nums" data-testid="candidate-status">
           {imageText} · {openInRead} in the read{searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.
         </p>
       )}
+      {/* Someone else's read, or a submitted one: its skips are its reader's alone, so no count of what is left. */}
+      {shown && !canEdit && <p className="text-ink-soft">Rings are the cells Fieldmark found on this image: suggestions, not counted.</p>}
     </div>
   );
 });

@@ -51,6 +51,8 @@ async function openWalk(page: Page, readId: number) {
   await page.waitForLoadState('networkidle');
   await page.keyboard.press('w');
   await page.waitForFunction(() => document.querySelector('[data-testid="field-canvas"]')?.hasAttribute('data-walk-target'));
+  // tsx names the harness's functions with a helper of its own, which the page lacks.
+  await page.evaluate('window.__name = (f) => f');
   await page.evaluate(() => {
     const el = document.querySelector<HTMLElement>('[data-testid="field-canvas"]')!;
     const stage = () => (window as unknown as { Konva: KonvaStages }).Konva.stages[0]!;
