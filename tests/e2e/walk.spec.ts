@@ -148,9 +148,15 @@ test('undo steps back through the walk, a click still marks a missed cell, and s
   const second = await target(page);
   await page.keyboard.press('x');
   await expect.poll(() => target(page)).not.toBe(second);
+  // The skip is saved through the same queue as the marks, for this read only.
+  const saved = page.getByTestId('sync-status');
+  await expect(saved).toHaveText('All changes saved', { timeout: 20_000 });
+  expect(await db('candidate_skips').where({ read_id: readId, deleted: false })).toHaveLength(1);
   // Undo the skip, then the mark: back to each candidate in turn.
   await page.keyboard.press('Control+z');
   await expect.poll(() => target(page)).toBe(second);
+  await expect(saved).toHaveText('All changes saved', { timeout: 20_000 });
+  expect(await db('candidate_skips').where({ read_id: readId, deleted: false })).toHaveLength(0);
   await page.keyboard.press('Control+z');
   await expect.poll(() => target(page)).toBe(first);
   await expect(page.getByTestId('candidate-status')).toContainText(`${found.length} found cells not yet judged`);
