@@ -132,4 +132,20 @@ describe('skipped candidates', () => {
     expect(theirs.body.candidates).toEqual(own.body.candidates);
     expect(collectionId).toBeGreaterThan(0);
   });
+
+  it('follow the lab setting for whether reads start with found cells shown, which only the lab manager changes', async () => {
+    const { readId } = await setUp();
+    const manager = await signedIn(USERS.manager);
+    const current = (await manager.json('/api/settings')).body.settings;
+    expect((await tech.json(`/api/reads/${readId}`)).body.candidatesShown).toBe(true);
+    expect((await tech.json('/api/settings', 'PUT', { ...current, showCandidates: false })).status).toBe(403);
+    const bad = await manager.json('/api/settings', 'PUT', { ...current, showCandidates: 'sometimes' });
+    expect(bad.status).toBe(422);
+    try {
+      expect((await manager.json('/api/settings', 'PUT', { ...current, showCandidates: false })).status).toBe(200);
+      expect((await tech.json(`/api/reads/${readId}`)).body.candidatesShown).toBe(false);
+    } finally {
+      await manager.json('/api/settings', 'PUT', { ...current, showCandidates: true });
+    }
+  });
 });
