@@ -4,8 +4,10 @@ import type Konva from 'konva';
 import { memo, useCallback, useEffect, useLayoutEffect, useRef, useState, type RefObject } from 'react';
 import { Circle, Image as KonvaImage, Layer, Shape, Stage } from 'react-konva';
 import type { MarkClass } from '@/lib/class-sets/schema';
-import type { FieldCanvasControl, FieldImageRef, ScoringMark } from '@/lib/scoring/types';
+import type { FieldCanvasControl, FieldImageRef, Point, ScoringMark } from '@/lib/scoring/types';
+import type { CandidateState } from '@/lib/scoring/walk';
 import {
+  clampScale,
   fitToScreen,
   hitTest,
   isInsideImage,
@@ -36,7 +38,17 @@ export interface FieldCanvasProps {
   onMove(id: string, x: number, y: number): void;
   onZoomChange?(scale: number): void;
   controlRef?: RefObject<FieldCanvasControl | null>;
+  /** Machine candidates on this image with their state for this read (empty when hidden). */
+  candidates?: readonly CanvasCandidate[];
+  /** The candidate the cell walk stands on. */
+  walkTarget?: Point | null;
 }
+
+export interface CanvasCandidate extends Point {
+  state: CandidateState;
+}
+
+const NO_CANDIDATES: readonly CanvasCandidate[] = [];
 
 const CLICK_SLOP_PX = 4;
 const FIT_PADDING = 12;
@@ -98,9 +110,60 @@ function drawMarks(
   }
 }
 
+/**
+ * Candidates as faint rings (open) or a small faint cross (skipped); a marked candidate shows its
+ * mark only. One shape for all, like the marks. Line widths are in screen pixels.
+ */
+function drawCandidates(c: CanvasRenderingContext2D, candidates: readonly CanvasCandidate[], radius: number, scale: number) {
+  const ring = radius * 1.5;
+  const cross = radius * 0.6;
+  c.beginPath();
+  for (const p of candidates) {
+    if (p.state !== 'open') continue;
+    c.moveTo(p.x + ring, p.y);
+    c.arc(p.x, p.y, ring, 0, Math.PI * 2);
+  }
+  c.lineWidth = 3 / scale;
+  c.strokeStyle = 'rgba(17, 24, 32, 0.35)';
+  c.stroke();
+  c.lineWidth = 1.25 / scale;
+  c.strokeStyle = 'rgba(255, 255, 255, 0.7)';
+  c.stroke();
+  c.beginPath();
+  for (const p of candidates) {
+    if (p.state !== 'skipped') continue;
+    c.moveTo(p.x - cross, p.y - cross);
+    c.lineTo(p.x + cross, p.y + cross);
+    c.moveTo(p.x + cross, p.y - cross);
+    c.lineTo(p.x - cross, p.y + cross);
+  }
+  c.lineWidth = 1.25 / scale;
+  c.strokeStyle = 'rgba(255, 255, 255, 0.55)';
+  c.stroke();
+}
+
+/** The walk's "judge this one" ring: bold, with four ticks outside it, so it reads on light and dark fields. */
+function drawWalkTarget(c: CanvasRenderingContext2D, p: Point, radius: number, scale: number) {
+  const r = radius * 2.3;
+  const tick = radius * 1.1;
+  c.beginPath();
+  c.moveTo(p.x + r, p.y);
+  c.arc(p.x, p.y, r, 0, Math.PI * 2);
+  for (const [dx, dy] of [[1, 0], [-1, 0], [0, 1], [0, -1]] as const) {
+    c.moveTo(p.x + dx * r, p.y + dy * r);
+    c.lineTo(p.x + dx * (r + tick), p.y + dy * (r + tick));
+  }
+  c.lineWidth = 5 / scale;
+  c.strokeStyle = '#111820';
+  c.stroke();
+  c.lineWidth = 2.5 / scale;
+  c.strokeStyle = '#ffffff';
+  c.stroke();
+}
+
 /** Memoised: the workbench re-renders for save status and dialogs; the canvas only when its props change. */
 export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
-  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef } = props;
+  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef, candidates = NO_CANDIDATES, walkTarget = null } = props;
   const containerRef = useRef<HTMLDivElement>(null);
   const stageRef = useRef<Konva.Stage>(null);
   const overlayRef = useRef<Konva.Layer>(null);
@@ -183,11 +246,14 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
     }
   }, [size, image.id, fit]);
 
-  const centre = () => {
-    const el = containerRef.current;
-    const r = el?.getBoundingClientRect();
-    return { x: (r?.width ?? 0) / 2, y: (r?.height ?? 0) / 2 };
-  };
+  const viewSize = useCallback(() => {
+    const r = containerRef.current?.getBoundingClientRect();
+    return { w: r?.width ?? 0, h: r?.height ?? 0 };
+  }, []);
+  const centre = useCallback(() => {
+    const { w, h } = viewSize();
+    return { x: w / 2, y: h / 2 };
+  }, [viewSize]);
 
   useEffect(() => {
     if (!controlRef) return;
@@ -201,6 +267,12 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
         return true;
       },
       panBy: (dx, dy) => applyViewport(pan(vpRef.current, dx, dy)),
+      centreOn: (p, to) => {
+        const { w, h } = viewSize();
+        const s = clampScale(to ?? vpRef.current.scale);
+        applyViewport({ scale: s, x: w / 2 - p.x * s, y: h / 2 - p.y * s });
+      },
+      viewSize,
       setSpacePan: (on) => {
         spaceRef.current = on;
         setCursor(on ? 'grab' : 'crosshair');
@@ -224,7 +296,7 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
     return () => {
       controlRef.current = null;
     };
-  }, [controlRef, fit, applyViewport]);
+  }, [controlRef, fit, applyViewport, viewSize, centre]);
 
   // Wheel zoom needs a non-passive listener to keep the page from scrolling.
   useEffect(() => {
@@ -386,6 +458,8 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
 
   // A new function when the marks, their size or the dragged mark change: react-konva then redraws the layer.
   const marksScene = useCallback((ctx: Konva.Context) => drawMarks(ctx._context, marks, classes, radius, draggingId), [marks, classes, radius, draggingId]);
+  const candidatesScene = useCallback((ctx: Konva.Context) => drawCandidates(ctx._context, candidates, radius, scale), [candidates, radius, scale]);
+  const walkScene = useCallback((ctx: Konva.Context) => walkTarget && drawWalkTarget(ctx._context, walkTarget, radius, scale), [walkTarget, radius, scale]);
   const selected = selectedId ? marks.find((m) => m.id === selectedId) : undefined;
   const dragged = draggingId ? marks.find((m) => m.id === draggingId) : undefined;
   const draggedClass = dragged ? (classes.get(dragged.classKey) ?? FALLBACK_CLASS) : null;
@@ -410,6 +484,7 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
       onPointerLeave={() => moveCursor(null)}
       data-testid="field-canvas"
       data-scale={scale.toFixed(4)}
+      data-walk-target={walkTarget ? `${walkTarget.x},${walkTarget.y}` : undefined}
     >
       {size && (
         <Stage ref={stageRef} width={size.w} height={size.h} listening={false}>
@@ -417,7 +492,9 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
             {source && <KonvaImage image={source as CanvasImageSource} width={image.width} height={image.height} listening={false} perfectDrawEnabled={false} />}
           </Layer>
           <Layer listening={false} visible={marksVisible}>
+            {candidates.length > 0 && <Shape listening={false} perfectDrawEnabled={false} shadowForStrokeEnabled={false} sceneFunc={candidatesScene} />}
             <Shape listening={false} perfectDrawEnabled={false} shadowForStrokeEnabled={false} sceneFunc={marksScene} />
+            {walkTarget && <Shape listening={false} perfectDrawEnabled={false} shadowForStrokeEnabled={false} sceneFunc={walkScene} />}
           </Layer>
           <Layer ref={overlayRef} listening={false}>
             {selected && marksVisible && !dragged && (

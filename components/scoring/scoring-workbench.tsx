@@ -8,14 +8,16 @@ import { fmtDateTime, formatPct } from '@/lib/format';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import { useLatest } from '@/lib/hooks/use-latest';
 import { syncStatusText } from '@/lib/hooks/use-mark-sync';
+import { useCellWalk } from '@/lib/hooks/use-cell-walk';
 import { useReadMarks, type MarkMapState } from '@/lib/hooks/use-read-marks';
 import { useWorkbenchKeys } from '@/lib/hooks/use-workbench-keys';
 import { morphologyClasses, summariseMorphology } from '@/lib/morphology/engine';
 import { countMarks } from '@/lib/morphology/tally';
 import { OPEN, READ_KIND_LABELS } from '@/lib/reads/kinds';
 import { canRedo, canUndo } from '@/lib/scoring/history';
-import type { WorkbenchCommand } from '@/lib/scoring/keys';
-import { newId, type FieldCanvasControl, type ReadPayload, type ScoringMark } from '@/lib/scoring/types';
+import { WALK_NAME, type WorkbenchCommand } from '@/lib/scoring/keys';
+import { newId, type CandidateSkip, type FieldCanvasControl, type ReadPayload, type ScoringMark } from '@/lib/scoring/types';
+import { headLengthPx, nextStop, walkScale } from '@/lib/scoring/walk';
 import { ZOOM_STEP } from '@/lib/scoring/viewport';
 import { CanvasToolbar } from './canvas-toolbar';
 import { ClassPalette, ClassStrip } from './class-palette';
@@ -25,6 +27,7 @@ import { ReadBanners } from './read-banners';
 import { SelectedMarkPanel } from './selected-mark-panel';
 import { SubmitReadDialog } from './submit-read-dialog';
 import { TallyPanel } from './tally-panel';
+import { WalkBar } from './walk-bar';
 
 // Konva needs a browser: the canvas never renders on the server.
 const FieldCanvas = dynamic(() => import('./field-canvas').then((m) => m.FieldCanvas), {
@@ -44,7 +47,7 @@ function useAnnouncer() {
 export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
   const timeZone = useLabTimeZone();
   const images = initial.images;
-  const { read, marks, marksRef, history, sync, canEdit, notice, dismissNotice, perform, travel, submit } = useReadMarks(initial);
+  const { read, marks, marksRef, skips, candidates, history, sync, canEdit, notice, dismissNotice, perform, travel, submit } = useReadMarks(initial);
   const classList = read.classSet.classes;
   const classes = useMemo(() => new Map(classList.map((c) => [c.key, c])), [classList]);
   const tallyClasses = useMemo(() => morphologyClasses(read.classSet), [read.classSet]);
@@ -58,6 +61,17 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
   const [tagsOpen, setTagsOpen] = useState(false);
   const [dialogOpen, setDialogOpen] = useState(false);
   const controlRef = useRef<FieldCanvasControl | null>(null);
+  // Found cells: shown to begin with as the lab setting says; a read may hide them (kept in this browser).
+  const shownKey = `fieldmark:candidates-shown:${read.id}`;
+  const [candidatesShown, setCandidatesShown] = useState(initial.candidatesShown);
+  useEffect(() => {
+    const stored = window.localStorage.getItem(shownKey);
+    // The browser's stored choice is known only after hydration (the server renders the setting's).
+    // eslint-disable-next-line react-hooks/set-state-in-effect
+    if (stored !== null) setCandidatesShown(stored === '1');
+  }, [shownKey]);
+  const [walkOn, setWalkOn] = useState(false);
+  const { walkImages, counts } = useCellWalk(images, candidates, marks, skips);
 
   // A selected mark that went away (deleted in another tab, refused) is no longer selected.
   if (selectedId && !marks.has(selectedId)) setSelectedId(null);
@@ -68,6 +82,22 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
   const image = images[imageIndex];
   const imageLabel = image ? `Field image ${imageIndex + 1} of ${images.length}` : 'No field image';
   const imageMarks = useMemo(() => (image ? [...marks.values()].filter((m) => m.imageId === image.id) : []), [marks, image]);
+  const imageWalk = walkImages[imageIndex];
+  const walking = walkOn && candidatesShown && canEdit;
+  const stop = walking ? nextStop(walkImages, imageIndex) : null;
+  const walkTarget = stop && stop.imageIndex === imageIndex ? stop.point : null;
+  const searching = walkImages.filter((w) => w.status === 'waiting' || w.status === 'running').length;
+  // The walk moves on by itself: to the next image with a found cell to judge when this one is done,
+  // and it ends when none is left (state adjusted while rendering, like the selection above).
+  if (walking && stop && stop.imageIndex !== imageIndex) {
+    setImageIndex(stop.imageIndex);
+    setSelectedId(null);
+    announce(`Field image ${stop.imageIndex + 1} of ${images.length}: its first found cell.`);
+  }
+  if (walking && !stop) {
+    setWalkOn(false);
+    announce(`${WALK_NAME} done: every found cell in this read is judged. Click to mark any cell it missed.`);
+  }
   // The same engine as the server's totals, fed the marks in memory.
   const readTally = useMemo(() => summariseMorphology(tallyClasses, countMarks(marks.values()), { target: Math.max(1, Math.round(read.targetCells)) }), [tallyClasses, marks, read.targetCells]);
   const imageTally = image ? readTally.perImage.find((p) => p.imageId === image.id) : undefined;
@@ -91,15 +121,54 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
   };
   const ofTarget = (m: MarkMapState) => `${spermCount(m)} of ${read.targetCells}`;
 
-  const place = (x: number, y: number) => {
-    const cls = classes.get(currentKey);
+  const place = (x: number, y: number, classKey = currentKey, fromWalk = false) => {
+    const cls = classes.get(classKey);
     if (!canEdit || !image || !cls) return;
     const mark: ScoringMark = { id: newId(), imageId: image.id, x: round2(x), y: round2(y), classKey: cls.key, tags: [] };
     const next = perform({ type: 'create', mark });
-    setSelectedId(keepClass ? null : mark.id);
+    setSelectedId(keepClass || fromWalk ? null : mark.id);
     setTagsOpen(false);
     const n = spermCount(next);
     announce(cls.countsAsSperm ? `Marked cell as ${cls.name} (${n} of ${read.targetCells})` : `Marked ${cls.name}, not counted as sperm (${n} of ${read.targetCells} cells)`);
+  };
+
+  /** The cell walk: the candidate in the ring becomes a mark of the class, or a skip; the view then moves on by itself. */
+  const walkClassify = (classKey: string) => {
+    if (walkTarget) place(walkTarget.x, walkTarget.y, classKey, true);
+  };
+  const walkSkip = () => {
+    if (!canEdit || !image || !walkTarget) return;
+    const skip: CandidateSkip = { id: newId(), imageId: image.id, x: walkTarget.x, y: walkTarget.y, skip: true };
+    perform({ type: 'create', mark: skip });
+    announce('Skipped: not a cell (never counted).');
+  };
+  const toggleWalk = () => {
+    if (walkOn) {
+      setWalkOn(false);
+      announce(`${WALK_NAME} stopped.`);
+      return;
+    }
+    if (!canEdit) return;
+    if (!candidatesShown) return announce(`Show found cells first, then start the ${WALK_NAME.toLowerCase()}.`);
+    if (!nextStop(walkImages, imageIndex)) {
+      return announce(searching ? 'Fieldmark is still finding cells on this read’s images; try again in a moment.' : 'No found cell is left to judge in this read.');
+    }
+    setSelectedId(null);
+    setTagsOpen(false);
+    walkScaledFor.current = null;
+    setWalkOn(true);
+    announce(`${WALK_NAME}: press a class key for the cell in the ring, x if it is not a cell.`);
+  };
+  const toggleCandidates = () => {
+    const next = !candidatesShown;
+    setCandidatesShown(next);
+    if (!next) setWalkOn(false);
+    try {
+      window.localStorage.setItem(shownKey, next ? '1' : '0');
+    } catch {
+      // storage unusable: the choice lasts for this page only
+    }
+    announce(next ? 'Found cells shown' : 'Found cells hidden');
   };
 
   const reclassify = (id: string, key: string) => {
@@ -135,7 +204,13 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
   };
 
   const step = (way: 'undo' | 'redo') => {
-    if (travel(way)) announce(`${way === 'undo' ? 'Undone' : 'Redone'} (${ofTarget(marksRef.current)})`);
+    const op = travel(way);
+    if (!op) return;
+    announce(`${way === 'undo' ? 'Undone' : 'Redone'} (${ofTarget(marksRef.current)})`);
+    // In the walk, undo goes back to the candidate it opened again, on its own image.
+    const imageId = op.type === 'update' ? marksRef.current.get(op.id)?.imageId : op.mark.imageId;
+    const i = imageId ? images.findIndex((im) => im.id === imageId) : -1;
+    if (walking && i >= 0 && i !== imageIndex) setImageIndex(i);
   };
 
   const goToImage = (i: number) => {
@@ -200,20 +275,52 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
       case 'image':
         goToImage(imageIndex + command.step);
         return true;
+      case 'toggle-walk':
+        toggleWalk();
+        return true;
+      case 'walk-classify':
+        walkClassify(command.classKey);
+        return true;
+      case 'walk-skip':
+        walkSkip();
+        return true;
     }
   };
 
+  // Centred on the ring, zoomed in when the walk starts or reaches a new image (the reader's own
+  // zoom is kept after that).
+  const walkScaledFor = useRef<string | null>(null);
+  const stopKey = stop ? `${stop.imageIndex}:${stop.point.x},${stop.point.y}` : null;
+  useEffect(() => {
+    if (!stop || stop.imageIndex !== imageIndex) return;
+    const control = controlRef.current;
+    const img = images[stop.imageIndex];
+    if (!control || !img) return;
+    let scale: number | undefined;
+    if (walkScaledFor.current !== img.id) {
+      const v = control.viewSize();
+      if (v.w > 0 && v.h > 0) scale = walkScale(v.w, v.h, headLengthPx(img.micronsPerPixel));
+      walkScaledFor.current = img.id;
+    }
+    control.centreOn(stop.point, scale);
+    // stopKey stands for stop (a new object every render).
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [stopKey, imageIndex, images]);
+
   useWorkbenchKeys({
     enabled: !dialogOpen,
-    context: { classSet: read.classSet, hasSelection: selectedId !== null, canEdit },
+    context: { classSet: read.classSet, hasSelection: selectedId !== null, canEdit, walking: walkTarget !== null },
     canvasFocused: () => controlRef.current?.hasFocus() ?? false,
     run,
     endSpacePan: () => controlRef.current?.setSpacePan(false),
   });
 
   // Stable callbacks for the memoised canvas and palette, calling this render's handlers.
-  const handlersRef = useLatest({ place, move, chooseClass });
+  const handlersRef = useLatest({ place, move, chooseClass, toggleCandidates, toggleWalk, walkSkip });
   const onPlace = useCallback((x: number, y: number) => handlersRef.current.place(x, y), [handlersRef]);
+  const onToggleCandidates = useCallback(() => handlersRef.current.toggleCandidates(), [handlersRef]);
+  const onToggleWalk = useCallback(() => handlersRef.current.toggleWalk(), [handlersRef]);
+  const onSkip = useCallback(() => handlersRef.current.walkSkip(), [handlersRef]);
   const onMove = useCallback((id: string, x: number, y: number) => handlersRef.current.move(id, x, y), [handlersRef]);
   const onChoose = useCallback((key: string) => handlersRef.current.chooseClass(key), [handlersRef]);
   const onSelect = useCallback((id: string | null) => {
@@ -267,6 +374,18 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
           />
 
           {canEdit && <ClassStrip classes={classList} currentKey={currentKey} onChoose={onChoose} />}
+          <WalkBar
+            shown={candidatesShown}
+            walking={walking}
+            canEdit={canEdit}
+            openOnImage={counts.perImage[imageIndex] ?? 0}
+            openInRead={counts.total}
+            imageStatus={imageWalk?.status ?? null}
+            searching={searching}
+            onToggleShown={onToggleCandidates}
+            onToggleWalk={onToggleWalk}
+            onSkip={onSkip}
+          />
           {/* The tally panel sits below the canvas on narrow screens: its headline stays in view here. */}
           <p className="text-sm tabular-nums lg:hidden" data-testid="tally-headline">
             Cells {readTally.cellsCounted}/{readTally.target} · {formatPct(readTally.pctNormal)} normal
@@ -292,6 +411,8 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
                 onSelect={onSelect}
                 onMove={onMove}
                 controlRef={controlRef}
+                candidates={candidatesShown ? imageWalk?.rings : undefined}
+                walkTarget={walkTarget}
               />
             ) : (
               <p className="p-6 text-sm">This collection has no field images yet. Upload images on the collection page first.</p>
@@ -358,6 +479,7 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
         target={read.targetCells}
         nonSpermCounted={readTally.nonSpermCounted}
         targetReached={readTally.targetReached}
+        openCandidates={candidatesShown ? counts.total : 0}
         onSubmit={submit}
         onSubmitted={() => {
           setSelectedId(null);

@@ -10,6 +10,7 @@ export function SubmitReadDialog({
   target,
   nonSpermCounted,
   targetReached,
+  openCandidates,
   onSubmit,
   onSubmitted,
 }: {
@@ -19,6 +20,8 @@ export function SubmitReadDialog({
   target: number;
   nonSpermCounted: number;
   targetReached: boolean;
+  /** Found cells not yet judged (marked or skipped) in the read; 0 when the read ignores them. */
+  openCandidates: number;
   /** Resolves to a message a person can act on, or null once the read is submitted. */
   onSubmit(): Promise<string | null>;
   onSubmitted(): void;
@@ -64,6 +67,14 @@ export function SubmitReadDialog({
         {nonSpermCounted ? `, ${nonSpermCounted} non-sperm cells tallied apart` : ''}. {!targetReached && <strong>The target is not reached yet. </strong>}
         After submitting, the read is locked and its marks can no longer be changed.
       </p>
+      {openCandidates > 0 && (
+        <p className="mt-2 rounded border border-warn bg-warn-bg px-2 py-1.5 text-sm" data-testid="open-candidates-warning">
+          <strong>
+            {openCandidates} found cell{openCandidates === 1 ? ' is' : 's are'} not judged yet.
+          </strong>{' '}
+          They are suggestions and count for nothing until you mark them; submit anyway only if you have judged the field another way.
+        </p>
+      )}
       {error && (
         <p className="mt-2 text-sm text-danger" role="alert">
           {error}

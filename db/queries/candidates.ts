@@ -3,7 +3,10 @@ import { db } from '@/db/knex';
 import { writeAudit } from '@/db/queries/audit';
 import { notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
+import { toSkip } from '@/db/queries/candidate-skips';
+import { getLabSettings } from '@/db/queries/settings';
 import { enqueueDetection, type JobStatus } from '@/lib/candidates/jobs';
+import type { CandidateSkip, ImageCandidateSet } from '@/lib/scoring/types';
 
 export type ImageCandidates = {
   status: JobStatus;
@@ -46,4 +49,29 @@ export async function rerunCandidates(actor: CurrentUser, imageId: number): Prom
     await enqueueDetection(trx, imageId, actor.id);
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'candidates', entityId: imageId, before: before ?? null, after: { status: 'waiting', rerun: true } });
   });
+}
+
+/**
+ * What the scoring page's walk needs beside the marks: every image's candidates (the image's, the
+ * same for both readers) and this read's skips, which only the read's own reader gets.
+ */
+export async function readWalkData(
+  user: CurrentUser,
+  read: { id: number; readerId: number },
+  imageIds: number[],
+): Promise<{ candidates: Record<string, ImageCandidateSet>; skips: CandidateSkip[]; candidatesShown: boolean }> {
+  const own = user.id === read.readerId;
+  const [jobs, points, skips, settings] = await Promise.all([
+    imageIds.length ? db('candidate_jobs').whereIn('image_id', imageIds).select('image_id', 'status') : [],
+    imageIds.length
+      ? db('candidates as c').join('candidate_jobs as j', 'j.image_id', 'c.image_id').where('j.status', 'done').whereIn('c.image_id', imageIds).orderBy('c.id').select('c.image_id', 'c.x', 'c.y', 'c.score')
+      : [],
+    own ? db('candidate_skips').where({ read_id: read.id, deleted: false }).orderBy('created_at') : [],
+    getLabSettings(),
+  ]);
+  const candidates: Record<string, ImageCandidateSet> = {};
+  for (const id of imageIds) candidates[String(id)] = { status: 'failed', points: [] };
+  for (const j of jobs) candidates[String(j.image_id)] = { status: j.status, points: [] };
+  for (const c of points) candidates[String(c.image_id)]?.points.push({ x: Number(c.x), y: Number(c.y), score: Number(c.score) });
+  return { candidates, skips: skips.map(toSkip), candidatesShown: settings.showCandidates };
 }

@@ -229,6 +229,8 @@ export async function deleteImage(actor: CurrentUser, id: number): Promise<void>
     if (Number(marked?.n ?? 0) > 0) {
       throw conflict(`${img.file_name} has cells marked on it in a read; it cannot be deleted. Delete the marks first, or keep the image.`);
     }
+    // Skipped candidates of the cell walk count for nothing: they go with the image.
+    await trx('candidate_skips').where({ image_id: id }).delete();
     await trx('field_images').where({ id }).delete();
     await writeAudit(trx, { userId: actor.id, action: 'delete', entity: 'field_image', entityId: id, before: img });
     return [img.original_key, img.display_key, img.thumb_key] as string[];

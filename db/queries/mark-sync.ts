@@ -6,7 +6,9 @@ import { json, type Row } from '@/db/row';
 import type { CurrentUser } from '@/lib/auth/session';
 import type { ClassSet, MarkClass } from '@/lib/class-sets/schema';
 import type { SendResult } from '@/lib/scoring/sync-contract';
-import type { ChangeInput } from '@/lib/validations/mark';
+import type { CandidateSkip, ScoringMark } from '@/lib/scoring/types';
+import { applySkipChanges } from '@/db/queries/candidate-skips';
+import type { ChangeInput, SkipChangeInput, SyncChangeInput } from '@/lib/validations/mark';
 
 /*
  * Mark saves from the scoring canvas (POST /api/reads/:id/sync and the single-mark routes).
@@ -40,12 +42,21 @@ const MARK_COLUMNS = ['image_id', 'x', 'y', 'class_key', 'tags', 'version', 'del
  * opId; an upsert creates, updates or restores by the mark's own id; a stale baseVersion
  * is a conflict answered with the server's copy. One transaction: all or nothing on error.
  */
-export async function syncMarks(user: CurrentUser, readId: number, changes: ChangeInput[]): Promise<SendResult> {
+export async function syncMarks(user: CurrentUser, readId: number, changes: SyncChangeInput[]): Promise<SendResult<ScoringMark | CandidateSkip>> {
+  const marks = changes.filter((c): c is ChangeInput => c.entity !== 'skip');
+  const skips = changes.filter((c): c is SkipChangeInput => c.entity === 'skip');
   // A duplicate key (the same new mark arriving twice at once, from a retry or a second tab)
   // or a deadlock is retried: the batch is idempotent, so the retry acknowledges what the other stored.
   for (let attempt = 1; ; attempt++) {
     try {
-      return await db.transaction((trx) => applyChanges(trx, user, readId, changes));
+      return await db.transaction(async (trx) => {
+        const result = marks.length || !skips.length ? await applyChanges(trx, user, readId, marks) : { acked: [], conflicts: [], rejected: [] };
+        if (!skips.length) return result;
+        // Skipped candidates ride the same request and transaction (db/queries/candidate-skips.ts).
+        const read = checkWritable(await trx('reads').where({ id: readId }).forShare().first(), user);
+        const s = await applySkipChanges(trx, user, read, skips);
+        return { acked: [...result.acked, ...s.acked], conflicts: [...(result.conflicts ?? []), ...s.conflicts], rejected: [...(result.rejected ?? []), ...s.rejected] };
+      });
     } catch (err) {
       const code = (err as { code?: string }).code;
       if ((code !== 'ER_LOCK_DEADLOCK' && code !== 'ER_DUP_ENTRY') || attempt >= 4) throw err;

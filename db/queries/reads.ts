@@ -2,6 +2,7 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/db/knex';
 import { writeAudit } from '@/db/queries/audit';
+import { readWalkData } from '@/db/queries/candidates';
 import { getLabSettings } from '@/db/queries/settings';
 import { json, type Row } from '@/db/row';
 import { ApiError, conflict, forbidden, notFound } from '@/lib/api/errors';
@@ -117,6 +118,7 @@ export async function getReadDetail(user: CurrentUser, readId: number): Promise<
     db('field_images').where({ collection_id: r.collection_id }).orderBy('position'),
     db('marks').where({ read_id: readId, deleted: false }).orderBy('created_at'),
   ]);
+  const walk = await readWalkData(user, summary, images.map((i) => i.id));
   return {
     read: {
       ...summary,
@@ -138,6 +140,7 @@ export async function getReadDetail(user: CurrentUser, readId: number): Promise<
       }),
     ),
     marks: marks.map(toMark),
+    ...walk,
   };
 }
 

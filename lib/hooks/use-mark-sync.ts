@@ -2,7 +2,7 @@
 
 import { useCallback, useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { backoff, ChangeQueue, syncOnce, type Change, type SendResult, type StorageLike } from '@/lib/scoring/queue';
-import type { ScoringMark } from '@/lib/scoring/types';
+import type { CandidateSkip, ScoringMark, SyncRecord } from '@/lib/scoring/types';
 import { SUBMITTED, type ReadStatus } from '@/lib/reads/kinds';
 import { useLatest } from './use-latest';
 
@@ -16,13 +16,14 @@ import { useLatest } from './use-latest';
 export interface ServerReadState {
   read: { status: ReadStatus; canEdit: boolean };
   marks: ScoringMark[];
+  skips: CandidateSkip[];
 }
 
 export interface MarkSyncHandlers<S extends ServerReadState> {
   /** Once, after the queue is loaded from storage: rebuild local state from it. */
-  onRestore(queue: ChangeQueue): void;
+  onRestore(queue: ChangeQueue<SyncRecord>): void;
   onAcked(acks: { markId: string; version?: number }[]): void;
-  onConflicts(conflicts: { markId: string; server: ScoringMark | null }[]): void;
+  onConflicts(conflicts: { markId: string; server: SyncRecord | null }[]): void;
   onRejected(rejected: { markId: string; message: string }[]): void;
   /** A fresh copy of the read from the server (poll, focus, after a rejection). */
   onServerState(state: S): void;
@@ -75,10 +76,13 @@ function browserStorage(): StorageLike | null {
 }
 
 /** Only the contract's fields go on the wire. */
-function wireChange(c: Change): Omit<Change, 'queuedAt'> {
-  const out: Omit<Change, 'queuedAt'> = { opId: c.opId, markId: c.markId, kind: c.kind, payload: null };
-  if (c.payload) {
-    const { id, imageId, x, y, classKey, tags } = c.payload;
+function wireChange(c: Change<SyncRecord>): Omit<Change<unknown>, 'queuedAt'> {
+  const out: Omit<Change<unknown>, 'queuedAt'> = { opId: c.opId, markId: c.markId, kind: c.kind, payload: null };
+  if (c.entity) out.entity = c.entity;
+  const p = c.payload;
+  if (p && 'skip' in p) out.payload = { id: p.id, imageId: p.imageId, x: p.x, y: p.y };
+  else if (p) {
+    const { id, imageId, x, y, classKey, tags } = p;
     out.payload = { id, imageId, x, y, classKey, tags };
   }
   if (c.baseVersion !== undefined) out.baseVersion = c.baseVersion;
@@ -99,7 +103,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
   const { enabled, sweepMs = 3000, pollMs = 10_000 } = options;
   const handlersRef = useLatest(handlers);
 
-  const queueRef = useRef<ChangeQueue | null>(null);
+  const queueRef = useRef<ChangeQueue<SyncRecord> | null>(null);
   const persistedRef = useRef(true);
   const runningRef = useRef(false);
   const retryTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -122,11 +126,11 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
   });
 
   /** The queue, loaded from storage on first use in the browser. */
-  const getQueue = useCallback((): ChangeQueue => {
+  const getQueue = useCallback((): ChangeQueue<SyncRecord> => {
     if (!queueRef.current) {
       const storage = browserStorage();
       persistedRef.current = storage !== null;
-      queueRef.current = storage ? ChangeQueue.load(storage, readId) : new ChangeQueue();
+      queueRef.current = storage ? ChangeQueue.load<SyncRecord>(storage, readId) : new ChangeQueue<SyncRecord>();
     }
     return queueRef.current;
   }, [readId]);
@@ -145,7 +149,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
   }, []);
 
   const send = useCallback(
-    async (batch: Change[]): Promise<SendResult> => {
+    async (batch: Change<SyncRecord>[]): Promise<SendResult<SyncRecord>> => {
       const res = await fetch(`/api/reads/${encodeURIComponent(readId)}/sync`, {
         method: 'POST',
         headers: { 'content-type': 'application/json' },
@@ -153,7 +157,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
         cache: 'no-store',
       });
       if (!res.ok) throw new SyncHttpError(res.status, await errorMessage(res));
-      return (await res.json()) as SendResult;
+      return (await res.json()) as SendResult<SyncRecord>;
     },
     [readId],
   );
@@ -238,7 +242,7 @@ export function useMarkSync<S extends ServerReadState>(readId: string, options: 
 
   /** Queue a change and send it soon (changes made within the same moment share a request). */
   const enqueue = useCallback(
-    (change: Change) => {
+    (change: Change<SyncRecord>) => {
       getQueue().enqueue(change);
       refreshStatus();
       if (!kickTimer.current && !retryTimer.current) {

@@ -5,7 +5,7 @@ import { submitReadRequest } from '@/lib/api/reads-client';
 import { OPEN, SUBMITTED } from '@/lib/reads/kinds';
 import { applyOp, createHistory, forgetMarks, push, redo, undo, type History, type MarkOp } from '@/lib/scoring/history';
 import { mergeServerMarks, opToChange, type ChangeQueue } from '@/lib/scoring/queue';
-import { newId, type ReadDetail, type ReadPayload, type ScoringMark } from '@/lib/scoring/types';
+import { isSkip, newId, type CandidateSkip, type ImageCandidateSet, type ReadDetail, type ReadPayload, type ScoringMark, type SyncRecord } from '@/lib/scoring/types';
 import { useMarkSync } from './use-mark-sync';
 
 /*
@@ -15,6 +15,14 @@ import { useMarkSync } from './use-mark-sync';
  */
 
 export type MarkMapState = Map<string, ScoringMark>;
+export type SkipMapState = Map<string, CandidateSkip>;
+/** One undoable action: on a mark, or on a skipped candidate of the cell walk. */
+export type ReadOp = MarkOp<SyncRecord>;
+
+/** A create or delete of a skip (skips are never updated). */
+export function isSkipOp(op: ReadOp): op is Extract<ReadOp, { mark: unknown }> & { mark: CandidateSkip } {
+  return op.type !== 'update' && isSkip(op.mark);
+}
 
 function sameMark(a: ScoringMark, b: ScoringMark): boolean {
   return (
@@ -28,6 +36,20 @@ function sameMark(a: ScoringMark, b: ScoringMark): boolean {
   );
 }
 
+/** The new candidates, keeping each image's old object where nothing changed (so nothing redraws). */
+function keepSameCandidates(cur: Record<string, ImageCandidateSet>, next: Record<string, ImageCandidateSet>): Record<string, ImageCandidateSet> {
+  let changed = Object.keys(cur).length !== Object.keys(next).length;
+  const out: Record<string, ImageCandidateSet> = {};
+  for (const [id, set] of Object.entries(next)) {
+    const old = cur[id];
+    const same =
+      old && old.status === set.status && old.points.length === set.points.length && old.points.every((p, i) => p.x === set.points[i]!.x && p.y === set.points[i]!.y);
+    out[id] = same ? old : set;
+    if (!same) changed = true;
+  }
+  return changed ? out : cur;
+}
+
 export function useReadMarks(initial: ReadPayload) {
   const readId = String(initial.read.id);
   const [read, setRead] = useState<ReadDetail>(initial.read);
@@ -37,47 +59,75 @@ export function useReadMarks(initial: ReadPayload) {
     marksRef.current = next;
     setMarksState(next);
   }, []);
-  const [history, setHistoryState] = useState<History<ScoringMark>>(createHistory<ScoringMark>);
+  const [skips, setSkipsState] = useState<SkipMapState>(() => new Map((initial.skips ?? []).map((k) => [k.id, k])));
+  const skipsRef = useRef(skips);
+  const setSkips = useCallback((next: SkipMapState) => {
+    skipsRef.current = next;
+    setSkipsState(next);
+  }, []);
+  const [history, setHistoryState] = useState<History<SyncRecord>>(createHistory<SyncRecord>);
   const historyRef = useRef(history);
-  const setHistory = useCallback((h: History<ScoringMark>) => {
+  const setHistory = useCallback((h: History<SyncRecord>) => {
     historyRef.current = h;
     setHistoryState(h);
   }, []);
   const [notice, setNotice] = useState<string | null>(null);
+  // The images' candidates: a search still running when the page opened shows up with the next poll.
+  const [candidates, setCandidates] = useState<Record<string, ImageCandidateSet>>(() => initial.candidates ?? {});
 
   const sync = useMarkSync<ReadPayload>(
     readId,
     { enabled: true },
     {
-      onRestore(queue: ChangeQueue) {
+      onRestore(queue: ChangeQueue<SyncRecord>) {
         if (queue.size === 0) return;
         const server = [...marksRef.current.values()];
+        const serverSkips = [...skipsRef.current.values()];
         const local = new Map(server.map((m) => [m.id, m]));
+        const localSkips = new Map(serverSkips.map((k) => [k.id, k]));
         for (const e of queue.all()) {
-          if (e.kind === 'upsert' && e.payload) local.set(e.markId, { ...e.payload, tags: [...e.payload.tags] });
+          if (e.entity === 'skip') {
+            if (e.kind === 'upsert' && e.payload && isSkip(e.payload)) localSkips.set(e.markId, { ...e.payload });
+            else localSkips.delete(e.markId);
+          } else if (e.kind === 'upsert' && e.payload && !isSkip(e.payload)) local.set(e.markId, { ...e.payload, tags: [...e.payload.tags] });
           else local.delete(e.markId);
         }
-        const merged = mergeServerMarks([...local.values()], server, queue.pendingMarkIds());
-        setMarks(new Map(merged.map((m) => [m.id, m])));
+        const pending = queue.pendingMarkIds();
+        setMarks(new Map(mergeServerMarks([...local.values()], server, pending).map((m) => [m.id, m])));
+        setSkips(new Map(mergeServerMarks([...localSkips.values()], serverSkips, pending).map((k) => [k.id, k])));
       },
       onAcked(acks) {
         let next: MarkMapState | null = null;
+        let nextSkips: SkipMapState | null = null;
         for (const a of acks) {
           if (a.version === undefined) continue;
           const m = (next ?? marksRef.current).get(a.markId);
-          if (!m || m.version === a.version) continue;
-          next ??= new Map(marksRef.current);
-          next.set(a.markId, { ...m, version: a.version });
+          if (m && m.version !== a.version) {
+            next ??= new Map(marksRef.current);
+            next.set(a.markId, { ...m, version: a.version });
+          }
+          const k = (nextSkips ?? skipsRef.current).get(a.markId);
+          if (k && k.version !== a.version) {
+            nextSkips ??= new Map(skipsRef.current);
+            nextSkips.set(a.markId, { ...k, version: a.version });
+          }
         }
         if (next) setMarks(next);
+        if (nextSkips) setSkips(nextSkips);
       },
       onConflicts(conflicts) {
         const next = new Map(marksRef.current);
+        const nextSkips = new Map(skipsRef.current);
         for (const c of conflicts) {
-          if (c.server) next.set(c.markId, c.server);
+          const skip = c.server ? isSkip(c.server) : nextSkips.has(c.markId);
+          if (skip) {
+            if (c.server && isSkip(c.server)) nextSkips.set(c.markId, c.server);
+            else nextSkips.delete(c.markId);
+          } else if (c.server && !isSkip(c.server)) next.set(c.markId, c.server);
           else next.delete(c.markId);
         }
         setMarks(next);
+        setSkips(nextSkips);
         setHistory(forgetMarks(historyRef.current, new Set(conflicts.map((c) => c.markId))));
         setNotice(`${conflicts.length} mark${conflicts.length === 1 ? ' was' : 's were'} changed elsewhere (another tab?) at the same time; the saved version is shown.`);
       },
@@ -86,6 +136,7 @@ export function useReadMarks(initial: ReadPayload) {
       },
       onServerState(state) {
         setRead((r) => ({ ...r, ...state.read, classSet: state.read.classSet ?? r.classSet }));
+        if (state.candidates) setCandidates((cur) => keepSameCandidates(cur, state.candidates));
         const pending = sync.getQueue().pendingMarkIds();
         const current = marksRef.current;
         const merged = mergeServerMarks([...current.values()], state.marks, pending);
@@ -104,6 +155,10 @@ export function useReadMarks(initial: ReadPayload) {
         }
         for (const id of current.keys()) if (!next.has(id)) stale.add(id);
         if (changed) setMarks(next);
+        // Skips: the server's copy unless a change of ours waits (only the reader gets them at all).
+        const mergedSkips = mergeServerMarks([...skipsRef.current.values()], state.skips ?? [], pending);
+        const curSkips = skipsRef.current;
+        if (mergedSkips.length !== curSkips.size || mergedSkips.some((k) => curSkips.get(k.id)?.version !== k.version)) setSkips(new Map(mergedSkips.map((k) => [k.id, k])));
         if (stale.size) setHistory(forgetMarks(historyRef.current, stale));
       },
     },
@@ -113,33 +168,41 @@ export function useReadMarks(initial: ReadPayload) {
 
   /** Apply an op locally and queue it for the server; returns the new marks. */
   const apply = useCallback(
-    (op: MarkOp<ScoringMark>) => {
-      const next = applyOp(marksRef.current, op);
+    (op: ReadOp): MarkMapState => {
+      const ids = { opId: newId(), now: Date.now() };
+      if (isSkipOp(op)) {
+        const nextSkips = applyOp<SyncRecord>(skipsRef.current, op) as SkipMapState;
+        setSkips(nextSkips);
+        const change = opToChange<SyncRecord>(op, nextSkips, ids);
+        if (change) sync.enqueue({ ...change, entity: 'skip' });
+        return marksRef.current;
+      }
+      const next = applyOp<SyncRecord>(marksRef.current, op) as MarkMapState;
       setMarks(next);
-      const change = opToChange(op, next, { opId: newId(), now: Date.now() });
+      const change = opToChange<SyncRecord>(op, next, ids);
       if (change) sync.enqueue(change);
       return next;
     },
-    [setMarks, sync],
+    [setMarks, setSkips, sync],
   );
 
   /** A new user action: applied, queued and put on the undo history. */
   const perform = useCallback(
-    (op: MarkOp<ScoringMark>) => {
+    (op: ReadOp) => {
       setHistory(push(historyRef.current, op));
       return apply(op);
     },
     [apply, setHistory],
   );
 
-  /** Undo or redo one step; false when there is none (or the read is locked). */
-  const travel = (way: 'undo' | 'redo'): boolean => {
-    if (!canEdit) return false;
+  /** Undo or redo one step: the op applied, or null when there is none (or the read is locked). */
+  const travel = (way: 'undo' | 'redo'): ReadOp | null => {
+    if (!canEdit) return null;
     const step = (way === 'undo' ? undo : redo)(historyRef.current);
-    if (!step) return false;
+    if (!step) return null;
     setHistory(step.history);
     apply(step.op);
-    return true;
+    return step.op;
   };
 
   /** Save what waits, then submit and lock the read. Returns a message when it could not. */
@@ -153,5 +216,5 @@ export function useReadMarks(initial: ReadPayload) {
     return null;
   };
 
-  return { read, marks, marksRef, history, sync, canEdit, notice, dismissNotice: () => setNotice(null), perform, travel, submit };
+  return { read, marks, marksRef, skips, candidates, history, sync, canEdit, notice, dismissNotice: () => setNotice(null), perform, travel, submit };
 }

@@ -20,7 +20,10 @@ export type WorkbenchCommand =
   | { type: 'fit' }
   | { type: 'toggle-marks' }
   | { type: 'toggle-tags' }
-  | { type: 'image'; step: -1 | 1 };
+  | { type: 'image'; step: -1 | 1 }
+  | { type: 'toggle-walk' }
+  | { type: 'walk-classify'; classKey: string }
+  | { type: 'walk-skip' };
 
 export interface KeyPress {
   key: string;
@@ -40,7 +43,10 @@ export interface KeyContext {
   onControl: boolean;
   /** Keyboard focus is on the canvas itself (Enter marks at the centre cross there). */
   canvasFocused: boolean;
+  /** The cell walk stands on a candidate of an editable read: a class key classifies it. */
+  walking?: boolean;
 }
+
 
 /**
  * What to do with the key: `preventDefault` is true when the browser's own action must not run,
@@ -50,6 +56,51 @@ export interface KeyContext {
 export type KeyOutcome = { command: WorkbenchCommand | null; preventDefault: boolean | 'if-handled' };
 
 const run = (command: WorkbenchCommand, preventDefault: KeyOutcome['preventDefault'] = true): KeyOutcome => ({ command, preventDefault });
+
+/** The cell walk's name on screen (our own). */
+export const WALK_NAME = 'Cell walk';
+
+/**
+ * Letter and symbol commands with their words: commandForKey runs them and the "Keys and mouse"
+ * help (components/scoring/keys-help.tsx) lists them, so a key cannot drift from its help.
+ */
+export interface KeyEntry {
+  /** Keys as KeyboardEvent.key gives them. */
+  keys: readonly string[];
+  /** The keys as the help shows them. */
+  label: string;
+  help: string;
+  command(ctx: KeyContext): KeyOutcome | null;
+}
+
+export const KEY_TABLE: readonly KeyEntry[] = [
+  {
+    keys: ['w', 'W'],
+    label: 'w',
+    help: `starts or stops the ${WALK_NAME}: the view goes from one found cell to the next, row by row across the image, and on to the next image. Press a class key for the cell in the ring; the view moves on by itself.`,
+    command: () => run({ type: 'toggle-walk' }, false),
+  },
+  {
+    keys: ['x', 'X'],
+    label: 'x',
+    help: `in the ${WALK_NAME}: not a cell — skip it (never counted). Ctrl+Z goes back to it.`,
+    command: (ctx) => (ctx.walking && ctx.canEdit ? run({ type: 'walk-skip' }, false) : null),
+  },
+  { keys: ['+', '='], label: '+', help: 'zooms in', command: () => run({ type: 'zoom', direction: 'in' }) },
+  { keys: ['-', '_'], label: '−', help: 'zooms out', command: () => run({ type: 'zoom', direction: 'out' }) },
+  { keys: ['f', 'F'], label: 'f', help: 'fits the image', command: () => run({ type: 'fit' }, false) },
+  { keys: ['h', 'H'], label: 'h', help: 'hides or shows the marks', command: () => run({ type: 'toggle-marks' }, false) },
+  {
+    keys: ['t', 'T'],
+    label: 't',
+    help: 'opens the extra-defect checklist of the selected mark',
+    command: (ctx) => (ctx.hasSelection && ctx.canEdit ? run({ type: 'toggle-tags' }, false) : null),
+  },
+  { keys: ['['], label: '[', help: 'goes to the previous image', command: () => run({ type: 'image', step: -1 }, false) },
+  { keys: [']'], label: ']', help: 'goes to the next image', command: () => run({ type: 'image', step: 1 }, false) },
+];
+
+const BY_KEY = new Map(KEY_TABLE.flatMap((e) => e.keys.map((k) => [k, e] as const)));
 
 /** The command for a key press on the workbench, or null when the key is not ours. */
 export function commandForKey(e: KeyPress, ctx: KeyContext): KeyOutcome | null {
@@ -70,32 +121,16 @@ export function commandForKey(e: KeyPress, ctx: KeyContext): KeyOutcome | null {
   if ((key === 'Delete' || key === 'Backspace') && ctx.hasSelection) return run({ type: 'delete-selected' });
   // Class hotkeys come before letter commands, so a lab may give any letter to a class.
   const cls = key.length === 1 ? classForHotkey(ctx.classSet, key) : null;
-  if (cls) return run(ctx.hasSelection && ctx.canEdit ? { type: 'reclassify-selected', classKey: cls.key } : { type: 'choose-class', classKey: cls.key });
-  switch (key) {
-    case '+':
-    case '=':
-      return run({ type: 'zoom', direction: 'in' });
-    case '-':
-    case '_':
-      return run({ type: 'zoom', direction: 'out' });
-    case 'Enter':
-      // Only on the canvas itself: Enter on a button or link keeps its usual meaning.
-      return ctx.canvasFocused ? run({ type: 'press-centre' }) : null;
-    case 'f':
-    case 'F':
-      return run({ type: 'fit' }, false);
-    case 'h':
-    case 'H':
-      return run({ type: 'toggle-marks' }, false);
-    case 't':
-    case 'T':
-      return ctx.hasSelection && ctx.canEdit ? run({ type: 'toggle-tags' }, false) : null;
-    case '[':
-      return run({ type: 'image', step: -1 }, false);
-    case ']':
-      return run({ type: 'image', step: 1 }, false);
+  if (cls) {
+    if (ctx.hasSelection && ctx.canEdit) return run({ type: 'reclassify-selected', classKey: cls.key });
+    if (ctx.walking && ctx.canEdit) return run({ type: 'walk-classify', classKey: cls.key });
+    return run({ type: 'choose-class', classKey: cls.key });
   }
-  return null;
+  if (key === 'Enter') {
+    // Only on the canvas itself: Enter on a button or link keeps its usual meaning.
+    return ctx.canvasFocused ? run({ type: 'press-centre' }) : null;
+  }
+  return BY_KEY.get(key)?.command(ctx) ?? null;
 }
 
 /** Whether an element takes typed text (keys there are the user's, not the workbench's). */

@@ -38,6 +38,8 @@ export interface Change<P = ScoringMark> {
   baseVersion?: number;
   /** ms since the epoch. */
   queuedAt: number;
+  /** Set for a skipped candidate of the cell walk (then `markId` is the skip's id); absent for a mark. */
+  entity?: 'skip';
 }
 
 export interface QueueEntry<P = ScoringMark> extends Change<P> {
@@ -68,6 +70,7 @@ const entrySchema = z.object({
   payload: z.unknown(),
   baseVersion: z.number().int().optional(),
   queuedAt: z.number(),
+  entity: z.literal('skip').optional(),
   state: z.enum(['pending', 'inFlight']),
   attempts: z.number().int().min(0),
 });

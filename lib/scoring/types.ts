@@ -74,11 +74,45 @@ export interface FieldImageRef {
   thumbUrl: string;
 }
 
+/**
+ * A candidate the reader skipped as "not a cell" during the walk. Per read, saved like a mark
+ * (client-made id, versioned) and never counted; `skip: true` tells it from a mark in the undo
+ * history and the change queue.
+ */
+export interface CandidateSkip {
+  id: string;
+  imageId: string;
+  x: number;
+  y: number;
+  skip: true;
+  version?: number;
+}
+
+/** What the change queue and the undo history carry: a mark, or a skipped candidate. */
+export type SyncRecord = ScoringMark | CandidateSkip;
+
+export function isSkip(r: SyncRecord): r is CandidateSkip {
+  return 'skip' in r;
+}
+
+/** A field image's machine candidates (the image's, the same for every read) and the search's state. */
+export interface ImageCandidateSet {
+  status: 'waiting' | 'running' | 'done' | 'failed';
+  /** Image pixels; empty until the search is done. */
+  points: { x: number; y: number; score: number }[];
+}
+
 /** Body of GET /api/reads/:id, and what the page hands the workbench. */
 export interface ReadPayload {
   read: ReadDetail;
   images: FieldImageRef[];
   marks: ScoringMark[];
+  /** Candidates by image id. */
+  candidates: Record<string, ImageCandidateSet>;
+  /** This read's skips: only its own reader gets them (empty for anyone else). */
+  skips: CandidateSkip[];
+  /** The lab setting: whether the canvas shows candidates (and offers the walk) to begin with. */
+  candidatesShown: boolean;
 }
 
 /** What the workbench (toolbar buttons and keys) can ask of the canvas. */
@@ -94,6 +128,10 @@ export interface FieldCanvasControl {
    * or places a new one there. 'off-image' when the cross is not over the image.
    */
   pressAtCentre(): 'selected' | 'placed' | 'off-image';
+  /** Centre the view on an image point; with `scale`, zoom to it too. */
+  centreOn(p: Point, scale?: number): void;
+  /** The view's size in screen pixels (0 × 0 before it is laid out). */
+  viewSize(): { w: number; h: number };
   /** Whether keyboard focus is on the canvas itself. */
   hasFocus(): boolean;
   getStage(): Konva.Stage | null;

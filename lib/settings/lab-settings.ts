@@ -32,6 +32,11 @@ export const labSettingsSchema = z.object({
    * read. Off, a collection read once may be reported from that single read, and the report says so.
    */
   secondReadRequired: z.boolean({ error: 'Say whether a second read is required.' }).default(true),
+  /**
+   * "Show found cells on the scoring canvas" (default on): reads start with the candidates shown and
+   * the cell walk offered. Off, reads start without them; the canvas's toggle still shows them.
+   */
+  showCandidates: z.boolean({ error: 'Say whether found cells are shown on the scoring canvas.' }).default(true),
   /** The lab's name and address as the signed reports print them; a report cannot be signed without the name. */
   labName: z.string().trim().max(200, 'The lab’s name is limited to 200 characters.').default(''),
   labAddress: z.string().trim().max(200, 'The address is limited to 200 characters.').default(''),
@@ -52,12 +57,13 @@ export const LAB_SETTINGS_DEFAULTS: LabSettings = {
   pairingDistanceUm: PAIRING_DISTANCE_UM_DEFAULT,
   timeZone: DEFAULT_TIME_ZONE,
   secondReadRequired: true,
+  showCandidates: true,
   labName: '',
   labAddress: '',
 };
 
 /** The numeric settings, each with its unit and the source of its default (the time zone, the second-read rule and the lab's name have their own fields). */
-export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone' | 'secondReadRequired' | 'labName' | 'labAddress'>; label: string; unit: string; source: string }[] = [
+export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone' | 'secondReadRequired' | 'showCandidates' | 'labName' | 'labAddress'>; label: string; unit: string; source: string }[] = [
   { key: 'freshDoseBillion', label: 'Fresh insemination dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.fresh.source },
   { key: 'cooledDoseBillion', label: 'Cooled-shipped dose', unit: '10^9 progressively motile sperm', source: DOSE_DEFAULTS.cooled.source },
   { key: 'frozenDoseBillion', label: 'Frozen dose', unit: '10^9 total sperm', source: DOSE_DEFAULTS.frozen.source },

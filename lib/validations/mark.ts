@@ -13,19 +13,37 @@ export const markPayloadSchema = z.object({
   version: z.number().int().optional(),
 });
 
-export const changeSchema = z
-  .object({
-    opId: uuid('The change id'),
-    markId: uuid('The mark id'),
-    kind: z.enum(['upsert', 'delete']),
-    payload: markPayloadSchema.nullable(),
-    baseVersion: z.number().int().min(0).optional(),
-    queuedAt: z.number().optional(),
-  })
-  .refine((c) => c.kind === 'delete' || c.payload !== null, { path: ['payload'], message: 'An upsert needs the mark.' });
+const changeFields = {
+  opId: uuid('The change id'),
+  kind: z.enum(['upsert', 'delete']),
+  baseVersion: z.number().int().min(0).optional(),
+  queuedAt: z.number().optional(),
+};
 
-export const syncSchema = z.object({ changes: z.array(changeSchema).min(1, 'Send at least one change.').max(200, 'Send at most 200 changes at once.') });
+const markChangeObject = z.object({ ...changeFields, entity: z.literal('mark').optional(), markId: uuid('The mark id'), payload: markPayloadSchema.nullable() });
+const needsPayload = (c: { kind: string; payload: unknown }) => c.kind === 'delete' || c.payload !== null;
+
+export const changeSchema = markChangeObject.refine(needsPayload, { path: ['payload'], message: 'An upsert needs the mark.' });
+
+/** A skipped candidate ("not a cell"), by its position: per read, saved like a mark, never counted. */
+export const skipPayloadSchema = z.object({
+  id: uuid('The skip id').optional(),
+  imageId: markPayloadSchema.shape.imageId,
+  x: markPayloadSchema.shape.x,
+  y: markPayloadSchema.shape.y,
+  version: z.number().int().optional(),
+});
+/** `markId` is the skip's own id here: the queue keeps one line of changes per record. */
+const skipChangeObject = z.object({ ...changeFields, entity: z.literal('skip'), markId: uuid('The skip id'), payload: skipPayloadSchema.nullable() });
+
+const syncChangeSchema = z
+  .discriminatedUnion('entity', [markChangeObject, skipChangeObject])
+  .refine(needsPayload, { path: ['payload'], message: 'An upsert needs the mark or the skipped candidate.' });
+
+export const syncSchema = z.object({ changes: z.array(syncChangeSchema).min(1, 'Send at least one change.').max(200, 'Send at most 200 changes at once.') });
 export type ChangeInput = z.output<typeof changeSchema>;
+export type SkipChangeInput = z.output<typeof skipChangeObject>;
+export type SyncChangeInput = z.output<typeof syncChangeSchema>;
 
 export const readParams = z.object({ id: z.coerce.number().int().positive('Unknown read.') });
 export const markParams = readParams.extend({ markId: uuid('The mark id') });

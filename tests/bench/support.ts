@@ -52,6 +52,8 @@ export async function removeBenchReads(s: Session, db: Knex, made: BenchRead[]):
     const reads = await db('reads').where({ collection_id: r.collectionId }).pluck('id');
     await db('marks').whereIn('read_id', reads).delete();
     await db('mark_ops').whereIn('read_id', reads).delete();
+    await db('candidate_skips').whereIn('read_id', reads).delete();
+    await db('candidate_skip_ops').whereIn('read_id', reads).delete();
     await db('reads').whereIn('id', reads).delete();
     await s.json(`/api/images/${r.imageId}`, 'DELETE');
     await db('collections').where({ id: r.collectionId }).delete();

@@ -197,6 +197,25 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
         await trx.rollback();
       }
     },
+  },  '20261226000300_candidate_skips.ts': {
+    tables: ['candidate_skip_ops', 'candidate_skips'],
+    async write() {
+      // The only read belongs to the signed collection: a skip there is refused, so the step
+      // writes its own ops row and checks the refusal.
+      await db('candidate_skip_ops').insert({ op_id: 'd'.repeat(8) + '-dddd-4ddd-8ddd-' + 'd'.repeat(12), skip_id: 'e'.repeat(8) + '-eeee-4eee-8eee-' + 'e'.repeat(12), read_id: ids.read, version: 1 });
+    },
+    async check() {
+      expect(await db('candidate_skip_ops').where({ read_id: ids.read }).count({ n: '*' }).first()).toEqual({ n: 1 });
+      const trx = await db.transaction();
+      try {
+        const outcome = await trx('candidate_skips')
+          .insert({ id: crypto.randomUUID(), read_id: ids.read, image_id: ids.image, x: 1, y: 2, last_op_id: crypto.randomUUID(), updated_by: ids.user })
+          .then(() => 'allowed', (e: { sqlMessage?: string }) => e.sqlMessage?.split(':')[0]);
+        expect(outcome).toBe('signed report');
+      } finally {
+        await trx.rollback();
+      }
+    },
   },
   '20261226000100_reads_numbered.ts': {
     tables: [],

@@ -105,6 +105,7 @@ describe('a signed collection', () => {
       ['insert a mark', db('marks').insert({ id: crypto.randomUUID(), read_id: c.reads.first, image_id: mark.image_id, x: 1, y: 1, class_key: 'normal', tags: '[]', last_op_id: crypto.randomUUID(), updated_by: tech })],
       ['change a mark', db('marks').where({ id: mark.id }).update({ class_key: 'detached_head' })],
       ['delete a mark', db('marks').where({ id: mark.id }).delete()],
+      ['skip a candidate', db('candidate_skips').insert({ id: crypto.randomUUID(), read_id: c.reads.first, image_id: mark.image_id, x: 1, y: 1, last_op_id: crypto.randomUUID(), updated_by: tech })],
       ['insert an image', db('field_images').insert({ collection_id: c.collectionId, file_name: 'x.jpg', format: 'jpeg', bytes: 1, width: 1, height: 1, sha256: 'f'.repeat(64), original_key: 'o', display_key: 'd', thumb_key: 't', display_width: 1, display_height: 1, uploaded_by: tech })],
       ['change an image’s scale', db('field_images').where({ id: c.imageIds[0] }).update({ microns_per_pixel: 0.5 })],
       ['delete an image', db('field_images').where({ id: c.imageIds[1] }).delete()],

@@ -37,6 +37,16 @@ export function SettingsForm({ initial, defaults, timeZones }: { initial: LabSet
           that single read, and the report says so. Fieldmark default; a lab’s own quality rule.
         </p>
       </div>
+      <div>
+        <label className="flex items-center gap-2 text-sm font-medium">
+          <input type="checkbox" aria-describedby="showCandidates-hint" {...form.register('showCandidates')} />
+          Show found cells on the scoring canvas
+        </label>
+        <p id="showCandidates-hint" className="mt-1 text-xs text-ink-faint">
+          On (default): reads start with the cells Fieldmark found shown as faint rings, and the cell walk offers them one by one. Off: reads start
+          without them (a reader can still turn them on for a read). They are suggestions either way; the reader decides every cell. Fieldmark default.
+        </p>
+      </div>
       {LAB_SETTINGS_FIELDS.map((f) => {
         const error = e[f.key]?.message as string | undefined;
         return (

@@ -7,7 +7,7 @@ import type { SendResult } from '@/lib/scoring/sync-contract';
 import { deleteMarkQuery, markParams, putMarkSchema } from '@/lib/validations/mark';
 
 // Single-mark forms of the sync route, with the same rules (idempotent by opId, versioned).
-function single(r: SendResult) {
+function single(r: SendResult<unknown>) {
   if (r.rejected?.length) throw new ApiError(422, 'invalid_mark', r.rejected[0].message);
   if (r.conflicts?.length) {
     return NextResponse.json({ error: { code: 'conflict', message: 'The mark was changed elsewhere; here is the current copy.' }, server: r.conflicts[0].server }, { status: 409 });
