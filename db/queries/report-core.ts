@@ -11,7 +11,7 @@
  * totals anything itself.
  */
 import type { Knex } from 'knex';
-import { collectionAgreement, pairCollection, type CollectionAgreement } from '@/lib/agreement/agreement';
+import { collectionAgreement, pairCollection, type CollectionAgreement, type ImagePairing } from '@/lib/agreement/agreement';
 import { pairingDistancePx, type PairingMark } from '@/lib/agreement/pairing';
 import { ApiError, conflict, notFound } from '@/lib/api/errors';
 import type { ClassSet } from '@/lib/class-sets/schema';
@@ -36,7 +36,7 @@ export async function labSettingsOf(k: K): Promise<LabSettings> {
   return mergeLabSettings(row ? json(row.value) : null);
 }
 
-async function audit(k: K, e: { userId: number; action: string; entity: string; entityId: number; before?: unknown; after?: unknown; reason?: string | null }) {
+export async function audit(k: K, e: { userId: number; action: string; entity: string; entityId: number; before?: unknown; after?: unknown; reason?: string | null }) {
   await k('audit_log').insert({
     user_id: e.userId,
     action: e.action,
@@ -75,6 +75,9 @@ export async function collectionReads(k: K, collectionId: number): Promise<Repor
   }));
 }
 
+/** A mark as the pairing sees it, with its image and extra defect tags. */
+export type ReportPairingMark = PairingMark & { imageId: string; tags: string[] };
+
 type MarkRow = { id: string; readId: number; imageId: string; x: number; y: number; classKey: string; tags: string[] };
 
 async function liveMarks(k: K, readIds: number[]): Promise<Map<number, MarkRow[]>> {
@@ -95,6 +98,8 @@ export interface ReadsForReport {
   morphology: Morphology | null;
   /** The submitted first and second reads' agreement; null unless both exist. */
   agreement: CollectionAgreement | null;
+  /** Their pairing per image, marks with their tags (the settle view builds the settled read from it); empty unless both exist. */
+  pairings: ImagePairing<ReportPairingMark>[];
   people: { readBy: string | null; checkedBy: string | null; settledBy: string | null };
 }
 
@@ -104,13 +109,14 @@ export async function readsForReport(k: K, collectionId: number, settings: Pick<
   const marks = await liveMarks(k, [...new Set([first, second, settled].filter((r): r is ReportReadRow => r !== null).map((r) => r.id))]);
 
   let agreement: CollectionAgreement | null = null;
+  let pairings: ImagePairing<ReportPairingMark>[] = [];
   if (first && second) {
     const images: Row[] = await k('field_images').where({ collection_id: collectionId }).orderBy('position').orderBy('id').select('id', 'microns_per_pixel');
     const sperm = new Map(first.classSet.classes.map((c) => [c.key, c.countsAsSperm]));
-    const asPairing = (m: MarkRow): PairingMark & { imageId: string } => ({ id: m.id, x: m.x, y: m.y, classKey: m.classKey, countsAsSperm: sperm.get(m.classKey) ?? true, imageId: m.imageId });
+    const asPairing = (m: MarkRow): ReportPairingMark => ({ id: m.id, x: m.x, y: m.y, classKey: m.classKey, countsAsSperm: sperm.get(m.classKey) ?? true, imageId: m.imageId, tags: m.tags });
     const a = marks.get(first.id)!.map(asPairing);
     const b = marks.get(second.id)!.map(asPairing);
-    const pairings = pairCollection(
+    pairings = pairCollection(
       images.map((im) => ({
         imageId: String(im.id),
         first: a.filter((m) => m.imageId === String(im.id)),
@@ -131,6 +137,7 @@ export async function readsForReport(k: K, collectionId: number, settings: Pick<
     basis,
     morphology,
     agreement,
+    pairings,
     people: {
       readBy: first?.readerName ?? null,
       checkedBy: checked ? (second?.readerName ?? null) : null,
