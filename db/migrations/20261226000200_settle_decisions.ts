@@ -34,7 +34,7 @@ export async function up(knex: Knex): Promise<void> {
     t.string('class_key', 40).nullable();
     t.integer('decided_by').unsigned().notNullable().references('users.id');
     t.timestamp('decided_at', { precision: 3 }).notNullable().defaultTo(knex.fn.now(3));
-    t.index(['first_read_id', 'second_read_id', 'disagreement_key']);
+    t.index(['first_read_id', 'second_read_id', 'disagreement_key'], 'settle_decisions_reads_key');
     t.index(['collection_id']);
   });
   const [bi, bu, bd] = TRIGGERS;
