@@ -6,6 +6,7 @@ import { Circle, Image as KonvaImage, Layer, Shape, Stage } from 'react-konva';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import type { FieldCanvasControl, FieldImageRef, ScoringMark } from '@/lib/scoring/types';
 import {
+  clampScale,
   fitToScreen,
   hitTest,
   isInsideImage,
@@ -36,6 +37,11 @@ export interface FieldCanvasProps {
   onMove(id: string, x: number, y: number): void;
   onZoomChange?(scale: number): void;
   controlRef?: RefObject<FieldCanvasControl | null>;
+  /**
+   * A point to centre on at a scale, ringed (the settle view's disagreement, also where this read
+   * has no mark). A new object centres again, instead of fitting the image when it is shown.
+   */
+  focus?: { x: number; y: number; scale: number } | null;
 }
 
 const CLICK_SLOP_PX = 4;
@@ -100,7 +106,7 @@ function drawMarks(
 
 /** Memoised: the workbench re-renders for save status and dialogs; the canvas only when its props change. */
 export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
-  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef } = props;
+  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef, focus } = props;
   const containerRef = useRef<HTMLDivElement>(null);
   const stageRef = useRef<Konva.Stage>(null);
   const overlayRef = useRef<Konva.Layer>(null);
@@ -174,14 +180,21 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
     applyViewport(fitToScreen(live.current.image.width, live.current.image.height, r.width, r.height, FIT_PADDING));
   }, [applyViewport]);
 
-  // Fit when a new image is shown or the canvas first gets a size.
+  // Fit when a new image is shown or the canvas first gets a size (or centre on the focus, when given).
   useEffect(() => {
     if (!size) return;
     if (fittedFor.current !== image.id) {
       fittedFor.current = image.id;
-      fit();
+      if (!live.current.focus) fit();
     }
   }, [size, image.id, fit]);
+  useEffect(() => {
+    const el = containerRef.current;
+    if (!size || !focus || !el) return;
+    const r = el.getBoundingClientRect();
+    const scale = clampScale(focus.scale);
+    applyViewport({ scale, x: r.width / 2 - focus.x * scale, y: r.height / 2 - focus.y * scale });
+  }, [size, focus, applyViewport]);
 
   const centre = () => {
     const el = containerRef.current;
@@ -424,6 +437,12 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
               <>
                 <Circle x={selected.x} y={selected.y} radius={radius * 1.75} stroke="#111820" strokeWidth={4} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
                 <Circle x={selected.x} y={selected.y} radius={radius * 1.75} stroke="#ffffff" strokeWidth={2} dash={[5, 3]} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
+              </>
+            )}
+            {focus && (
+              <>
+                <Circle x={focus.x} y={focus.y} radius={radius * 3} stroke="#111820" strokeWidth={4} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
+                <Circle x={focus.x} y={focus.y} radius={radius * 3} stroke="#ffd54a" strokeWidth={2} dash={[6, 4]} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
               </>
             )}
             {ghostDraw && dragged && (

@@ -18,9 +18,9 @@ import { SETTLED_READ, SUBMITTED } from '@/lib/reads/kinds';
 import { buildSettledRead, decisionsInForce, settleProgress, whyNotDecision, type SettleDecision, type SettleDecisionKind, type SettleProgress } from '@/lib/settling/settle';
 import { openReadOf, settleReads, whySettleRefused } from '@/lib/settling/policy';
 import type { LabSettings } from '@/lib/settings/lab-settings';
-import type { FieldImageRef } from '@/lib/scoring/types';
+import type { FieldImageRef, ScoringMark } from '@/lib/scoring/types';
 import type { SendResult } from '@/lib/scoring/sync-contract';
-import { audit, readsForReport, type ReportReadRow } from './report-core';
+import { audit, readsForReport, type ReportPairingMark, type ReportReadRow } from './report-core';
 import type { Row } from '../row';
 
 type K = Knex | Knex.Transaction;
@@ -54,6 +54,8 @@ export interface SettleState {
   /** The first read's class set (the settled read's too). */
   classSet: ClassSet | null;
   images: FieldImageRef[];
+  /** Every mark of the two reads (the view shows each read's cells around a disagreement). */
+  marks: { first: ScoringMark[]; second: ScoringMark[] };
   /** Walk order: image by image, top to bottom (lib/agreement). Empty unless both reads are submitted. */
   disagreements: SettleDisagreement[];
   progress: SettleProgress;
@@ -101,6 +103,7 @@ export async function settleStateOf(k: K, actor: SettleActor, collectionId: numb
       status: 'not-ready',
       reason: refusal?.message ?? 'Both the first and the second read must be submitted before their disagreements can be settled.',
       images: [],
+      marks: { first: [], second: [] },
       disagreements: [],
       progress: { total: 0, decided: 0, undecided: [] },
       mayDecide: false,
@@ -116,7 +119,12 @@ export async function settleStateOf(k: K, actor: SettleActor, collectionId: numb
   const progress = settleProgress(disagreements, inForce);
   const status = settled ? 'settled' : 'open';
   const reason = disagreements.length === 0 && !settled ? 'The two reads agree cell for cell: there is nothing to settle, and the first read stands as the settled result.' : null;
-  return { ...base, status, reason, images, disagreements, progress, mayDecide: !refusal && disagreements.length > 0, whyNot: refusal?.message ?? null };
+  const asMark = (m: ReportPairingMark): ScoringMark => ({ id: m.id, imageId: m.imageId, x: m.x, y: m.y, classKey: m.classKey, tags: m.tags });
+  const marks = {
+    first: r.pairings.flatMap(({ pairing }) => [...pairing.pairs.map((p) => p.first), ...pairing.onlyFirst]).map(asMark),
+    second: r.pairings.flatMap(({ pairing }) => [...pairing.pairs.map((p) => p.second), ...pairing.onlySecond]).map(asMark),
+  };
+  return { ...base, status, reason, images, marks, disagreements, progress, mayDecide: !refusal && disagreements.length > 0, whyNot: refusal?.message ?? null };
 }
 
 export interface DecisionInput {

@@ -6,6 +6,7 @@ import { collectionReportState } from '@/db/queries/reports';
 import { getLabSettings } from '@/db/queries/settings';
 import { MorphologySummary } from '@/components/reads/morphology-summary';
 import { StartReadButton } from '@/components/reads/start-read-button';
+import { SettleLink } from '@/components/settling/settle-link';
 import { nullIfNotFound } from '@/lib/api/errors';
 import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { FieldImages } from '@/components/images/gallery';
@@ -159,6 +160,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
           {actions.map((a) => (
             <StartReadButton key={a.kind} collectionId={c.id} kind={a.kind} label={`${a.action === 'start' ? 'Start' : 'Continue'} ${READ_KIND_LABELS[a.kind].toLowerCase()}`} />
           ))}
+          {!locked && <SettleLink user={user} collectionId={c.id} />}
         </div>
         <MorphologySummary reads={reads} />
       </section>
