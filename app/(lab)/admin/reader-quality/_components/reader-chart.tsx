@@ -10,6 +10,8 @@ const COLOURS = { bias: '#0072B2', over: '#D55E00', kappa: '#1c2430' };
 /** One reader's collections in date order: bias bars (left axis, points) and kappa (right axis). */
 export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoint[]; timeZone: string }) {
   const rows = points.map((p) => ({ ...p, label: new Date(p.collectedAt).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', timeZone }) }));
+  // Symmetric about 0, so the sign of the bias reads at a glance (a single collection's bar included).
+  const reach = Math.max(1, Math.ceil(Math.max(...rows.map((r) => Math.abs(r.bias ?? 0)))));
   if (!rows.length) return <p className="py-6 text-center text-sm text-ink-soft">Not compared with another reader in this period.</p>;
   return (
     <div className="h-48">
@@ -17,7 +19,7 @@ export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoin
         <ComposedChart data={rows} margin={{ top: 8, right: 8, bottom: 0, left: -12 }}>
           <CartesianGrid stroke="#d6dad3" strokeDasharray="3 3" />
           <XAxis dataKey="label" tick={{ fontSize: 11 }} />
-          <YAxis yAxisId="bias" tick={{ fontSize: 11 }} unit=" pt" />
+          <YAxis yAxisId="bias" domain={[-reach, reach]} allowDecimals={false} tick={{ fontSize: 11 }} unit=" pt" />
           <YAxis yAxisId="kappa" orientation="right" domain={[0, 1]} tick={{ fontSize: 11 }} />
           <ReferenceLine yAxisId="bias" y={0} stroke="#475467" />
           <Tooltip
