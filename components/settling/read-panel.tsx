@@ -8,7 +8,7 @@ export function ReadPanel({ side, readerName, mark, markClass, children }: { sid
   const title = side === 'first' ? 'First read' : 'Second read';
   return (
     <section aria-label={`${title} by ${readerName}`} className="space-y-1">
-      <div className="flex flex-wrap items-baseline justify-between gap-2">
+      <div>
         <h3 className="text-sm font-semibold">
           {title} <span className="font-normal text-ink-soft">· {readerName}</span>
         </h3>
