@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeTestDb, testDb } from '../support/db';
 import { Session, signedIn, USERS } from '../support/http';
-import { built, json } from '../reports/support';
+import { built, json, signed } from '../reports/support';
 
 // Settling over HTTP: the settle state, decisions saved once under retries and audited, refused
 // for the wrong role or person and while a read is open, and the settled read written with the
@@ -157,5 +157,17 @@ describe('deciding', () => {
     expect(settled.reader_id).toBe((await testDb()('users').where({ email: USERS.vet }).first('id')).id);
     // Three cells dropped as not cells, three kept with the first reader's class: 272 − 3.
     expect(await testDb()('marks').where({ read_id: settled.id }).count({ n: '*' }).first()).toEqual({ n: 269 });
+  });
+
+  it('is locked with the collection once its report is signed: no decision changes, none is added', async () => {
+    const c = await built('unsettled');
+    const list = (await state(reader, c.collectionId)).body.disagreements as { key: string }[];
+    await post(reader, c.collectionId, list.map((d) => decision(d.key, 'second')));
+    await signed(vet, c.collectionId);
+    const refusal = (p: Promise<unknown>) => p.then(() => 'allowed', (e: { sqlMessage?: string }) => e.sqlMessage?.split(':')[0]);
+    const decisions = () => testDb()('settle_decisions').where({ collection_id: c.collectionId });
+    expect(await refusal(decisions().update({ decision: 'first' }))).toBe('signed report');
+    expect(await refusal(decisions().delete())).toBe('signed report');
+    expect(await rows(c.collectionId)).toHaveLength(6);
   });
 });
