@@ -1,4 +1,9 @@
+'use client';
+
+import { useLabTimeZone } from '@/components/time/lab-clock';
+import type { DecisionView } from '@/db/queries/settle-core';
 import type { Disagreement } from '@/lib/agreement/agreement';
+import { fmtDateTime } from '@/lib/format';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import type { DecisionPayload } from '@/lib/hooks/use-decision-sync';
 import { keyHint, type SettleCommandId } from '@/lib/settling/keys';
@@ -10,6 +15,8 @@ export function DecisionBar({
   firstClass,
   secondClass,
   decision,
+  stored,
+  closed,
   classes,
   disabled,
   refused,
@@ -19,11 +26,17 @@ export function DecisionBar({
   firstClass: MarkClass | undefined;
   secondClass: MarkClass | undefined;
   decision: DecisionPayload | null;
+  /** The decision the server holds (who and when), if any. */
+  stored: DecisionView | null;
+  /** The settled read is written: decisions no longer change. */
+  closed: boolean;
   classes: ReadonlyMap<string, MarkClass>;
   disabled: boolean;
   refused: boolean;
   onRun(id: SettleCommandId): void;
 }) {
+  const timeZone = useLabTimeZone();
+  const by = stored ? ` by ${stored.decidedBy}, ${fmtDateTime(stored.decidedAt, timeZone)}` : '';
   const name = (c: MarkClass | undefined, m: Disagreement['first']) => (m ? (c?.name ?? m.classKey) : 'not a cell');
   const options: { id: SettleCommandId; label: string; pressed: boolean }[] = [
     { id: 'first', label: `First reader: ${name(firstClass, d.first)}`, pressed: decision?.decision === 'first' },
@@ -41,7 +54,13 @@ export function DecisionBar({
         ))}
       </div>
       <p className="text-sm text-ink-soft" data-testid="settle-decision">
-        {refused ? 'The server refused this decision: choose again.' : decision ? 'Settled; press another key to change it until the last disagreement is settled.' : 'Not settled yet.'}
+        {refused
+          ? 'The server refused this decision: choose again.'
+          : !decision
+            ? 'Not settled yet.'
+            : closed
+              ? `Settled${by}. The settled read is written; its decisions no longer change.`
+              : `Settled${by}; press another key to change it until the last disagreement is settled.`}
       </p>
     </section>
   );

@@ -233,6 +233,8 @@ export function SettleWorkbench({ initial }: { initial: SettleState }) {
             firstClass={firstClass}
             secondClass={secondClass}
             decision={currentDecision}
+            stored={local.has(current.key) ? null : current.decision}
+            closed={settledReadId !== null}
             classes={classes}
             disabled={!canDecide}
             refused={rejected.has(current.key)}

@@ -77,7 +77,7 @@ export function QualityView({ report, timeZone }: { report: ReaderQualityReport;
             {table.getRowModel().rows.map((r) => (
               <tr key={r.id}>
                 {r.getVisibleCells().map((c) => (
-                  <td key={c.id} className={c.column.id === 'confused' ? 'td' : 'td whitespace-nowrap'}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>
+                  <td key={c.id} className={c.column.id === 'confused' ? 'td min-w-56' : 'td whitespace-nowrap'}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>
                 ))}
               </tr>
             ))}

@@ -20,7 +20,7 @@ export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoin
           <CartesianGrid stroke="#d6dad3" strokeDasharray="3 3" />
           <XAxis dataKey="label" tick={{ fontSize: 11 }} />
           <YAxis yAxisId="bias" domain={[-reach, reach]} allowDecimals={false} tick={{ fontSize: 11 }} unit=" pt" />
-          <YAxis yAxisId="kappa" orientation="right" domain={[0, 1]} tick={{ fontSize: 11 }} />
+          <YAxis yAxisId="kappa" orientation="right" domain={[(low: number) => Math.min(0, Math.floor(low * 4) / 4), 1]} tick={{ fontSize: 11 }} />
           <ReferenceLine yAxisId="bias" y={0} stroke="#475467" />
           <Tooltip
             formatter={(value, key) => (key === 'bias' ? [`${fmt(Number(value), 1)} points`, 'Bias in % normal'] : [fmt(Number(value), 2), 'Kappa'])}
