@@ -152,7 +152,15 @@ export interface DecisionsResult extends Required<SendResult<never>> {
  * Concurrency: every settling transaction of a collection first locks the collection's reads
  * (FOR UPDATE), so two requests never both write the settled read or miss each other's decisions.
  */
-export async function applyDecisionsTx(trx: Knex.Transaction, actor: SettleActor, collectionId: number, inputs: readonly DecisionInput[], settings: Pick<LabSettings, 'secondReadRequired'>): Promise<DecisionsResult> {
+export async function applyDecisionsTx(
+  trx: Knex.Transaction,
+  actor: SettleActor,
+  collectionId: number,
+  inputs: readonly DecisionInput[],
+  settings: Pick<LabSettings, 'secondReadRequired'>,
+  /** When the decisions are taken (the demo seed dates its own); now by default. */
+  at?: Date,
+): Promise<DecisionsResult> {
   const locked = await trx('reads').where({ collection_id: collectionId }).forUpdate().select('id');
   if (!locked.length && !(await trx('collections').where({ id: collectionId }).first('id'))) throw new ApiError(404, 'not_found', 'The collection was not found.');
   const r = await readsForReport(trx, collectionId, settings);
@@ -191,7 +199,7 @@ export async function applyDecisionsTx(trx: Knex.Transaction, actor: SettleActor
     seen.set(i.opId, i.key);
     rows.push({
       op_id: i.opId, collection_id: collectionId, first_read_id: first.id, second_read_id: second.id,
-      disagreement_key: i.key, decision: i.decision, class_key: i.decision === 'other' ? i.classKey : null, decided_by: actor.id,
+      disagreement_key: i.key, decision: i.decision, class_key: i.decision === 'other' ? i.classKey : null, decided_by: actor.id, decided_at: at ?? trx.fn.now(3),
     });
     result.acked.push({ opId: i.opId, markId: i.key });
   }
@@ -213,7 +221,7 @@ export async function applyDecisionsTx(trx: Knex.Transaction, actor: SettleActor
   const done = settleReads(r.reads).settled;
   if (done) result.settledReadId = done.id;
   else if (result.progress.undecided.length === 0 && r.agreement.disagreements.length > 0) {
-    result.settledReadId = await writeSettledRead(trx, actor, collectionId, first, second, r.pairings, inForce, classes);
+    result.settledReadId = await writeSettledRead(trx, actor, collectionId, first, second, r.pairings, inForce, classes, at);
   }
   return result;
 }
@@ -227,6 +235,7 @@ async function writeSettledRead(
   pairings: Parameters<typeof buildSettledRead>[0],
   decisions: Map<string, SettleDecision>,
   classes: { key: string; countsAsSperm: boolean }[],
+  at: Date | undefined,
 ): Promise<number> {
   const built = buildSettledRead(pairings, decisions, classes);
   if (built.undecided.length) throw new ApiError(409, 'conflict', 'Some disagreements are not decided yet.');
@@ -234,7 +243,7 @@ async function writeSettledRead(
   const [readId] = await trx('reads').insert({
     collection_id: collectionId, kind: SETTLED_READ, reader_id: actor.id, class_set_id: source.class_set_id,
     class_set_snapshot: typeof source.class_set_snapshot === 'string' ? source.class_set_snapshot : JSON.stringify(source.class_set_snapshot),
-    target_cells: source.target_cells, status: SUBMITTED, started_at: trx.fn.now(3), submitted_at: trx.fn.now(3),
+    target_cells: source.target_cells, status: SUBMITTED, started_at: at ?? trx.fn.now(3), submitted_at: at ?? trx.fn.now(3),
   });
   const marks = built.marks.map((m) => ({
     id: crypto.randomUUID(), read_id: readId, image_id: Number(m.imageId), x: m.x, y: m.y, class_key: m.classKey, tags: JSON.stringify(m.tags),

@@ -116,7 +116,8 @@ async function settleDemo(trx: Knex.Transaction, collectionId: number, reader: S
     key: d.key,
     decision: d.kind === 'only-first' || d.key === firstClass ? ('first' as const) : ('second' as const),
   }));
-  const done = await applyDecisionsTx(trx, reader, collectionId, decisions, settings);
+  const second = await trx('reads').where({ id: state.second!.id }).first('submitted_at');
+  const done = await applyDecisionsTx(trx, reader, collectionId, decisions, settings, new Date(new Date(second.submitted_at).getTime() + 2 * 3600e3));
   if (!done.settledReadId) throw new Error(`seed 09: collection ${collectionId} was not settled (${done.rejected.map((r) => r.message).join(' ')})`);
 }
 

@@ -29,7 +29,7 @@ export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoin
               return p ? `Collection ${p.collectionId}, read ${p.as} with ${p.otherReader}${p.exceeded ? ' — over the acceptable difference' : ''}` : '';
             }}
           />
-          <Bar yAxisId="bias" dataKey="bias" isAnimationActive={false}>
+          <Bar yAxisId="bias" dataKey="bias" maxBarSize={28} isAnimationActive={false}>
             {rows.map((r) => <Cell key={r.collectionId} fill={r.exceeded ? COLOURS.over : COLOURS.bias} />)}
           </Bar>
           <Line yAxisId="kappa" dataKey="kappa" stroke={COLOURS.kappa} dot={{ r: 3 }} isAnimationActive={false} connectNulls />
