@@ -42,6 +42,11 @@ export interface FieldCanvasProps {
   candidates?: readonly CanvasCandidate[];
   /** The candidate the cell walk stands on. */
   walkTarget?: Point | null;
+  /**
+   * A point to centre on at a scale, ringed (the settle view's disagreement, also where this read
+   * has no mark). A new object centres again, instead of fitting the image when it is shown.
+   */
+  focus?: { x: number; y: number; scale: number } | null;
 }
 
 export interface CanvasCandidate extends Point {
@@ -163,7 +168,7 @@ function drawWalkTarget(c: CanvasRenderingContext2D, p: Point, radius: number, s
 
 /** Memoised: the workbench re-renders for save status and dialogs; the canvas only when its props change. */
 export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
-  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef, candidates = NO_CANDIDATES, walkTarget = null } = props;
+  const { image, marks, classes, selectedId, marksVisible, readOnly, currentClass, controlRef, candidates = NO_CANDIDATES, walkTarget = null, focus } = props;
   const containerRef = useRef<HTMLDivElement>(null);
   const stageRef = useRef<Konva.Stage>(null);
   const overlayRef = useRef<Konva.Layer>(null);
@@ -237,14 +242,21 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
     applyViewport(fitToScreen(live.current.image.width, live.current.image.height, r.width, r.height, FIT_PADDING));
   }, [applyViewport]);
 
-  // Fit when a new image is shown or the canvas first gets a size.
+  // Fit when a new image is shown or the canvas first gets a size (or centre on the focus, when given).
   useEffect(() => {
     if (!size) return;
     if (fittedFor.current !== image.id) {
       fittedFor.current = image.id;
-      fit();
+      if (!live.current.focus) fit();
     }
   }, [size, image.id, fit]);
+  useEffect(() => {
+    const el = containerRef.current;
+    if (!size || !focus || !el) return;
+    const r = el.getBoundingClientRect();
+    const scale = clampScale(focus.scale);
+    applyViewport({ scale, x: r.width / 2 - focus.x * scale, y: r.height / 2 - focus.y * scale });
+  }, [size, focus, applyViewport]);
 
   const viewSize = useCallback(() => {
     const r = containerRef.current?.getBoundingClientRect();
@@ -501,6 +513,12 @@ export const FieldCanvas = memo(function FieldCanvas(props: FieldCanvasProps) {
               <>
                 <Circle x={selected.x} y={selected.y} radius={radius * 1.75} stroke="#111820" strokeWidth={4} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
                 <Circle x={selected.x} y={selected.y} radius={radius * 1.75} stroke="#ffffff" strokeWidth={2} dash={[5, 3]} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
+              </>
+            )}
+            {focus && (
+              <>
+                <Circle x={focus.x} y={focus.y} radius={radius * 3} stroke="#111820" strokeWidth={4} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
+                <Circle x={focus.x} y={focus.y} radius={radius * 3} stroke="#ffd54a" strokeWidth={2} dash={[6, 4]} strokeScaleEnabled={false} listening={false} perfectDrawEnabled={false} />
               </>
             )}
             {ghostDraw && dragged && (

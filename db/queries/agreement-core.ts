@@ -7,7 +7,7 @@
  * because the demo seed runs it under tsx through the report code.
  */
 import type { Knex } from 'knex';
-import { collectionAgreement, pairCollection, type CollectionAgreement } from '@/lib/agreement/agreement';
+import { collectionAgreement, pairCollection, type CollectionAgreement, type ImagePairing } from '@/lib/agreement/agreement';
 import { PAIRING_DISTANCE_PX_DEFAULT, PAIRING_DISTANCE_UM_DEFAULT, pairingDistancePx, type PairingDistanceSettings, type PairingMark } from '@/lib/agreement/pairing';
 import type { ClassSet } from '@/lib/class-sets/schema';
 import { morphologyClasses } from '@/lib/morphology/engine';
@@ -41,6 +41,9 @@ export async function collectionReads(k: K, collectionId: number): Promise<Repor
     classSet: json<ClassSet>(r.class_set_snapshot),
   }));
 }
+
+/** A mark as the pairing sees it, with its image and extra defect tags (the settled read keeps them). */
+export type ReportPairingMark = PairingMark & { imageId: string; tags: string[] };
 
 export type MarkRow = { id: string; readId: number; imageId: string; x: number; y: number; classKey: string; tags: string[] };
 
@@ -77,6 +80,8 @@ export interface PairedReads {
   marks: Map<number, MarkRow[]>;
   /** The first and second reads' agreement; null unless both are submitted. */
   agreement: CollectionAgreement | null;
+  /** Their pairing per image, marks with their tags (settling builds the settled read from it); empty unless both are submitted. */
+  pairings: ImagePairing<ReportPairingMark>[];
 }
 
 export interface PairedReadsOptions {
@@ -92,14 +97,15 @@ export async function pairedReads(k: K, collectionId: number, settings: PairingS
   const marks = await liveMarks(k, [...new Set([first, second, settled].filter((r): r is ReportReadRow => r !== null).map((r) => r.id))]);
 
   let agreement: CollectionAgreement | null = null;
+  let pairings: ImagePairing<ReportPairingMark>[] = [];
   if (first && second) {
     const images: Row[] = await k('field_images').where({ collection_id: collectionId }).orderBy('position').orderBy('id').select('id', 'microns_per_pixel');
     const sperm = new Map(first.classSet.classes.map((c) => [c.key, c.countsAsSperm]));
-    const asPairing = (m: MarkRow): PairingMark & { imageId: string } => ({ id: m.id, x: m.x, y: m.y, classKey: m.classKey, countsAsSperm: sperm.get(m.classKey) ?? true, imageId: m.imageId });
+    const asPairing = (m: MarkRow): ReportPairingMark => ({ id: m.id, x: m.x, y: m.y, classKey: m.classKey, countsAsSperm: sperm.get(m.classKey) ?? true, imageId: m.imageId, tags: m.tags });
     const a = marks.get(first.id)!.map(asPairing);
     const b = marks.get(second.id)!.map(asPairing);
     const distance = pairingDistanceOf(settings);
-    const pairings = pairCollection(
+    pairings = pairCollection(
       images.map((im) => ({
         imageId: String(im.id),
         first: a.filter((m) => m.imageId === String(im.id)),
@@ -109,5 +115,5 @@ export async function pairedReads(k: K, collectionId: number, settings: PairingS
     );
     agreement = collectionAgreement(pairings, morphologyClasses(first.classSet));
   }
-  return { reads, first, second, settled, marks, agreement };
+  return { reads, first, second, settled, marks, agreement, pairings };
 }

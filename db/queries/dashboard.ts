@@ -7,6 +7,7 @@ import type { Row } from '@/db/row';
 import type { CurrentUser } from '@/lib/auth/session';
 import { READER_ROLES, ROLES, type Role } from '@/lib/auth/roles';
 import { recountAdvisedAmong } from '@/db/queries/agreement';
+import { settleStateOf } from '@/db/queries/settle-core';
 import { FIRST_READ, OPEN, SECOND_READ, SETTLED_READ, SUBMITTED, type ReadKind } from '@/lib/reads/kinds';
 import { visibleReadsOfCollections } from '@/lib/reads/policy';
 import { labYear } from '@/lib/time/lab-time';
@@ -153,6 +154,46 @@ export async function collectionsAwaitingSecondRead(user: CurrentUser, limit = 1
     .sort((a, b) => new Date(b.r.collected_at).getTime() - new Date(a.r.collected_at).getTime())
     .slice(0, limit)
     .map(({ r, recount: rc }) => ({ id: r.id, collectedAt: new Date(r.collected_at).toISOString(), stallion: r.stallion, firstReader: r.first_reader, recount: rc }));
+}
+
+export type ToSettle = { id: number; collectedAt: string; stallion: string; secondReader: string; total: number; decided: number };
+
+/**
+ * The settling work list: unsigned collections whose first and second reads are both submitted and
+ * disagree on some cells that are not all decided, which the user may settle (the second reader, or
+ * any veterinarian: lib/settling/policy.ts), newest first. Candidates come from one query; each is
+ * then paired through the settle state, the same figures the settle view shows.
+ */
+export async function collectionsToSettle(user: CurrentUser, limit = 10): Promise<ToSettle[]> {
+  if (user.role !== 'technician' && user.role !== 'veterinarian') return [];
+  const has = (kind: ReadKind, status: string) => (q: Knex.QueryBuilder) =>
+    q.select(db.raw('1')).from('reads as r').whereRaw('r.collection_id = k.id').where('r.kind', kind).where('r.status', status);
+  const q = db('collections as k')
+    .join('stallions as s', 's.id', 'k.stallion_id')
+    .whereNull('k.signed_report_id')
+    .whereExists(has(FIRST_READ, SUBMITTED))
+    .whereExists(has(SECOND_READ, SUBMITTED))
+    .whereNotExists((w) => w.select(db.raw('1')).from('reads as r').whereRaw('r.collection_id = k.id').where('r.status', OPEN).whereIn('r.kind', [FIRST_READ, SECOND_READ]))
+    .orderBy('k.collected_at', 'desc')
+    .limit(limit * 3)
+    .select('k.id', 'k.collected_at', 's.name as stallion');
+  // A technician settles only the collections whose (latest) second read is theirs.
+  if (user.role === 'technician') {
+    q.whereExists((w) =>
+      w.select(db.raw('1')).from('reads as r').whereRaw('r.collection_id = k.id').where('r.kind', SECOND_READ).where('r.status', SUBMITTED).where('r.reader_id', user.id)
+        .whereRaw("r.id = (select max(r2.id) from `reads` as r2 where r2.collection_id = k.id and r2.kind = 'second' and r2.status = 'submitted')"),
+    );
+  }
+  const candidates: Row[] = await q;
+  const settings = await getLabSettings();
+  const out: ToSettle[] = [];
+  for (const c of candidates) {
+    const st = await settleStateOf(db, user, c.id, settings);
+    if (st.status !== 'open' || !st.mayDecide || st.progress.total === st.progress.decided) continue;
+    out.push({ id: c.id, collectedAt: new Date(c.collected_at).toISOString(), stallion: c.stallion, secondReader: st.second?.readerName ?? '', total: st.progress.total, decided: st.progress.decided });
+    if (out.length === limit) break;
+  }
+  return out;
 }
 
 export type UserOverview = { active: Record<Role, number>; deactivated: number; invitationsOpen: number };

@@ -11,7 +11,7 @@
  * totals anything itself.
  */
 import type { Knex } from 'knex';
-import type { CollectionAgreement } from '@/lib/agreement/agreement';
+import type { CollectionAgreement, ImagePairing } from '@/lib/agreement/agreement';
 import { ApiError, conflict, notFound } from '@/lib/api/errors';
 import { morphologyOfRead, type Morphology } from '@/lib/morphology/engine';
 import { countMarks } from '@/lib/morphology/tally';
@@ -20,7 +20,7 @@ import { readinessToSign, reportBasis, type Readiness, type ReportBasis, type Re
 import type { ReportHealthEvent, ReportSnapshot } from '@/lib/reports/snapshot';
 import { newVerificationCode } from '@/lib/reports/verification';
 import { blindingRead } from '@/lib/reads/policy';
-import { pairedReads, type PairingSettings, type ReportReadRow } from './agreement-core';
+import { pairedReads, type PairingSettings, type ReportPairingMark, type ReportReadRow } from './agreement-core';
 import { mergeLabSettings, type LabSettings } from '@/lib/settings/lab-settings';
 import { flagCollections, spermatogenicWindow } from '@/lib/windows/window';
 import { HEALTH_EVENT_KIND_LABELS, describeHealthEvent, type HealthEventKind } from '@/lib/health/kinds';
@@ -35,7 +35,7 @@ export async function labSettingsOf(k: K): Promise<LabSettings> {
   return mergeLabSettings(row ? json(row.value) : null);
 }
 
-async function audit(k: K, e: { userId: number; action: string; entity: string; entityId: number; before?: unknown; after?: unknown; reason?: string | null }) {
+export async function audit(k: K, e: { userId: number; action: string; entity: string; entityId: number; before?: unknown; after?: unknown; reason?: string | null }) {
   await k('audit_log').insert({
     user_id: e.userId,
     action: e.action,
@@ -51,8 +51,8 @@ async function audit(k: K, e: { userId: number; action: string; entity: string; 
 // Reads
 
 // The read rows and the pairing live in db/queries/agreement-core.ts (shared with the agreement
-// route and the lists); re-exported here for the report code that imported them from this module.
-export { collectionReads, type ReportReadRow } from './agreement-core';
+// route, the lists and settling); re-exported here for the report code that imported them from this module.
+export { collectionReads, type ReportPairingMark, type ReportReadRow } from './agreement-core';
 
 /** Everything the report needs from the reads of a collection. */
 export interface ReadsForReport {
@@ -62,6 +62,8 @@ export interface ReadsForReport {
   morphology: Morphology | null;
   /** The submitted first and second reads' agreement; null unless both exist. */
   agreement: CollectionAgreement | null;
+  /** Their pairing per image, marks with their tags (the settle view builds the settled read from it); empty unless both exist. */
+  pairings: ImagePairing<ReportPairingMark>[];
   people: { readBy: string | null; checkedBy: string | null; settledBy: string | null };
 }
 
@@ -70,7 +72,7 @@ export async function readsForReport(
   collectionId: number,
   settings: Pick<LabSettings, 'secondReadRequired'> & PairingSettings,
 ): Promise<ReadsForReport> {
-  const { reads, first, second, settled, marks, agreement } = await pairedReads(k, collectionId, settings);
+  const { reads, first, second, settled, marks, agreement, pairings } = await pairedReads(k, collectionId, settings);
 
   const basis = reportBasis(reads, { secondReadRequired: settings.secondReadRequired, disagreements: agreement ? agreement.disagreements.length : null });
   const morphology = basis
@@ -82,6 +84,7 @@ export async function readsForReport(
     basis,
     morphology,
     agreement,
+    pairings,
     people: {
       readBy: first?.readerName ?? null,
       checkedBy: checked ? (second?.readerName ?? null) : null,

@@ -2,7 +2,8 @@ import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Knex } from 'knex';
-import { collectionReport, signReportTx, amendReportTx } from '../queries/report-core';
+import { collectionReport, labSettingsOf, signReportTx, amendReportTx } from '../queries/report-core';
+import { applyDecisionsTx, settleStateOf, type SettleActor } from '../queries/settle-core';
 import { DEMO_CENTRE_NAME, DEMO_FEVER, DEMO_RECORDERS, DEMO_STALLIONS } from '../../lib/demo/scenario';
 import { UPLOAD_LIMITS } from '../../lib/images/limits';
 import { storeFieldImage } from '../../lib/images/store';
@@ -25,7 +26,9 @@ import * as storage from '../../storage/s3-core';
  * - Marrowby Sextant (another owner's stallion), 20 May (his nearest, 21 May): field images, first, second and settled
  *   reads, signed.
  * Reads are added only where missing (an earlier seed may have made second or settled reads), and
- * a collection that already has a signed version is left alone: re-runnable. Reports are signed
+ * a collection that already has a signed version is left alone: re-runnable. Settled reads are
+ * made by the app's own settling transaction (db/queries/settle-core.ts), so each comes with its
+ * decisions and their audit entries, and the settle view shows how it was settled. Reports are signed
  * through the app's own signing code, and their PDFs rendered and stored through the app's own
  * render queue.
  */
@@ -33,13 +36,13 @@ import * as storage from '../../storage/s3-core';
 // `tags` comes back from MariaDB's JSON column as text or, parsed, as an array.
 type Mark = { id: string; read_id: number; image_id: number; x: number; y: number; class_key: string; tags: string | string[] };
 
-async function user(knex: Knex, email: string): Promise<{ id: number; name: string }> {
-  const u = await knex('users').where({ email }).first('id', 'name');
+async function user(knex: Knex, email: string): Promise<{ id: number; name: string; role: SettleActor['role'] }> {
+  const u = await knex('users').where({ email }).first('id', 'name', 'role');
   if (!u) throw new Error(`Seed 09 needs the demo user ${email} (seed 01).`);
   return u;
 }
 
-async function nearestCollection(knex: Knex, registration: string, date: string) {
+export async function nearestCollection(knex: Knex, registration: string, date: string) {
   return knex('collections as k')
     .join('stallions as s', 's.id', 'k.stallion_id')
     .where('s.registration', registration)
@@ -70,44 +73,56 @@ async function insertMarks(knex: Knex, marks: Mark[], userId: number) {
 
 /**
  * A blind second read of the first read's cells: each mark moved by up to 2 px, `changes` cells
- * given another class, one cell missed and one extra cell marked. With `settle`, the settled read
- * too: the first read's cells with the second reader's class on all but one disagreement, the
- * missed cell kept, the extra one added.
+ * given another class, one cell missed and one extra cell marked. With `settle`, the collection
+ * is then settled through the app's own settling code (decisions stored and audited, the settled
+ * read written from them): the second reader's class on all but the first class disagreement,
+ * the missed cell kept, the extra one added.
  */
-async function addSecondRead(knex: Knex, collectionId: number, seed: number, reader: { id: number }, opts: { changes: number; missAndExtra: boolean; settle: boolean }) {
+export async function addSecondRead(knex: Knex.Transaction, collectionId: number, seed: number, reader: SettleActor, opts: { changes: number; missAndExtra: boolean; settle: boolean }) {
   const reads = await knex('reads').where({ collection_id: collectionId }).select('id', 'kind', 'status');
   const first = reads.find((r) => r.kind === FIRST_READ && r.status === SUBMITTED);
-  if (!first || reads.some((r) => r.kind === SECOND_READ)) return;
-  const rnd = mulberry32(seed);
-  const firstMarks: Mark[] = await knex('marks').where({ read_id: first.id, deleted: false }).orderBy('id').select('id', 'read_id', 'image_id', 'x', 'y', 'class_key', 'tags');
-  const c = await knex('collections').where({ id: collectionId }).first('collected_at');
-  const at = new Date(new Date(c.collected_at).getTime() + 26 * 3600e3);
-  const secondId = await readRow(knex, collectionId, SECOND_READ, reader.id, at);
-  const jitter = (v: number) => Math.max(0, Math.round((Number(v) + (rnd() * 4 - 2)) * 100) / 100);
-  const changed = new Map<string, string>();
-  while (changed.size < opts.changes) {
-    const m = pick(rnd, firstMarks);
-    if (!changed.has(m.id)) changed.set(m.id, m.class_key === 'normal' ? pick(rnd, DEFECTS) : 'normal');
+  if (!first) return;
+  if (!reads.some((r) => r.kind === SECOND_READ)) {
+    const rnd = mulberry32(seed);
+    const firstMarks: Mark[] = await knex('marks').where({ read_id: first.id, deleted: false }).orderBy('id').select('id', 'read_id', 'image_id', 'x', 'y', 'class_key', 'tags');
+    const c = await knex('collections').where({ id: collectionId }).first('collected_at');
+    const at = new Date(new Date(c.collected_at).getTime() + 26 * 3600e3);
+    const secondId = await readRow(knex, collectionId, SECOND_READ, reader.id, at);
+    const jitter = (v: number) => Math.max(0, Math.round((Number(v) + (rnd() * 4 - 2)) * 100) / 100);
+    const changed = new Map<string, string>();
+    while (changed.size < opts.changes) {
+      const m = pick(rnd, firstMarks);
+      if (!changed.has(m.id)) changed.set(m.id, m.class_key === 'normal' ? pick(rnd, DEFECTS) : 'normal');
+    }
+    const missed = opts.missAndExtra ? (firstMarks.find((m) => !changed.has(m.id) && rnd() < 0.2) ?? firstMarks[0]!) : null;
+    const extra: Mark = { ...firstMarks[0]!, x: 12, y: 12, class_key: 'normal' };
+    const second = [
+      ...firstMarks.filter((m) => m !== missed).map((m) => copy(m, secondId, { x: jitter(m.x), y: jitter(m.y), class_key: changed.get(m.id) ?? m.class_key })),
+      ...(opts.missAndExtra ? [copy(extra, secondId)] : []),
+    ];
+    await insertMarks(knex, second, reader.id);
   }
-  const missed = opts.missAndExtra ? (firstMarks.find((m) => !changed.has(m.id) && rnd() < 0.2) ?? firstMarks[0]!) : null;
-  const extra: Mark = { ...firstMarks[0]!, x: 12, y: 12, class_key: 'normal' };
-  const second = [
-    ...firstMarks.filter((m) => m !== missed).map((m) => copy(m, secondId, { x: jitter(m.x), y: jitter(m.y), class_key: changed.get(m.id) ?? m.class_key })),
-    ...(opts.missAndExtra ? [copy(extra, secondId)] : []),
-  ];
-  await insertMarks(knex, second, reader.id);
-  if (!opts.settle || reads.some((r) => r.kind === SETTLED_READ)) return;
-  const settledId = await readRow(knex, collectionId, SETTLED_READ, reader.id, new Date(at.getTime() + 2 * 3600e3));
-  const keepFirst = [...changed.keys()][0];
-  await insertMarks(
-    knex,
-    [...firstMarks.map((m) => copy(m, settledId, { class_key: m.id === keepFirst ? m.class_key : (changed.get(m.id) ?? m.class_key) })), ...(opts.missAndExtra ? [copy(extra, settledId)] : [])],
-    reader.id,
-  );
+  if (opts.settle && !reads.some((r) => r.kind === SETTLED_READ)) await settleDemo(knex, collectionId, reader);
+}
+
+/** Decides every disagreement of the collection as the demo's second reader would, through the app's settling transaction. */
+async function settleDemo(trx: Knex.Transaction, collectionId: number, reader: SettleActor) {
+  const settings = await labSettingsOf(trx);
+  const state = await settleStateOf(trx, reader, collectionId, settings);
+  if (state.status !== 'open' || !state.disagreements.length) return;
+  const firstClass = state.disagreements.find((d) => d.kind === 'class')?.key;
+  const decisions = state.disagreements.map((d) => ({
+    opId: crypto.randomUUID(),
+    key: d.key,
+    decision: d.kind === 'only-first' || d.key === firstClass ? ('first' as const) : ('second' as const),
+  }));
+  const second = await trx('reads').where({ id: state.second!.id }).first('submitted_at');
+  const done = await applyDecisionsTx(trx, reader, collectionId, decisions, settings, new Date(new Date(second.submitted_at).getTime() + 2 * 3600e3));
+  if (!done.settledReadId) throw new Error(`seed 09: collection ${collectionId} was not settled (${done.rejected.map((r) => r.message).join(' ')})`);
 }
 
 /** Field images and a first read for a collection that has none (the drawn cells are the read). */
-async function addImagesAndFirstRead(knex: Knex, collectionId: number, tech: { id: number }, seed: number) {
+export async function addImagesAndFirstRead(knex: Knex, collectionId: number, tech: { id: number }, seed: number) {
   if (await knex('field_images').where({ collection_id: collectionId }).first('id')) return;
   const c = await knex('collections').where({ id: collectionId }).first('collected_at', 'magnification', 'optics');
   const dir = await mkdtemp(join(tmpdir(), 'fieldmark-seed-'));

@@ -36,6 +36,7 @@ export function navFor(role: Role): NavItem[] {
       { href: '/admin/class-sets', label: 'Class sets' },
       { href: '/admin/settings', label: 'Lab settings' },
       { href: '/admin/audit', label: 'Audit log' },
+      { href: '/admin/reader-quality', label: 'Reader quality' },
     );
   }
   items.push({ href: '/help', label: 'Help and safety' });

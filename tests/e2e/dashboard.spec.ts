@@ -18,6 +18,16 @@ test('a technician’s dashboard: greeting by name, the season with its dates, t
   await expect(page.getByRole('heading', { name: 'Users and settings' })).toHaveCount(0);
 });
 
+test('the second reader’s dashboard lists the demo’s unsettled disagreements, linked to the settle view', async ({ page }) => {
+  await signIn(page, USERS.reader);
+  await page.goto('/dashboard');
+  const list = page.getByRole('region', { name: 'Disagreements to settle' });
+  // Seed 07b: Copperline Drifter's collection of 24 June, second-read by this reader, eleven disagreements undecided.
+  const link = list.getByRole('link', { name: /Copperline Drifter · 24 Jun 2026/ });
+  await expect(link).toHaveAttribute('href', /^\/collections\/\d+\/settle$/);
+  await expect(list.getByText('0 of 11 settled · second read by Orrin Halvard')).toBeVisible();
+});
+
 test('a veterinarian is greeted by the name as written and has a place for reports to sign', async ({ page }) => {
   await signIn(page, USERS.vet);
   await page.goto('/dashboard');

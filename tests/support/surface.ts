@@ -40,6 +40,7 @@ export const PAGES: Entry[] = [
   { path: '/collections/[collection]', roles: STAFF },
   { path: '/collections/[collection]/edit', roles: STAFF },
   { path: '/collections/[collection]/report', roles: STAFF },
+  { path: '/collections/[collection]/settle', roles: STAFF },
   { path: '/reports', roles: STAFF },
   { path: '/reports/[report]', roles: STAFF },
   { path: '/clients', roles: STAFF },
@@ -49,6 +50,7 @@ export const PAGES: Entry[] = [
   { path: '/admin/class-sets', roles: ['lab_manager'] },
   { path: '/admin/settings', roles: ['lab_manager'] },
   { path: '/admin/audit', roles: ['lab_manager'] },
+  { path: '/admin/reader-quality', roles: ['lab_manager'] },
 ];
 
 export const GET_ROUTES: Entry[] = [
@@ -73,10 +75,12 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/collections/[collection]/reads', roles: STAFF },
   { path: '/api/collections/[collection]/agreement', roles: STAFF },
   { path: '/api/collections/[collection]/report', roles: STAFF },
+  { path: '/api/collections/[collection]/settle', roles: STAFF },
   { path: '/api/reports', roles: SIGNED_IN },
   { path: '/api/reports/[report]', roles: SIGNED_IN },
   { path: '/api/reports/[report]/pdf', roles: SIGNED_IN },
   { path: '/api/audit', roles: ['lab_manager'] },
+  { path: '/api/reader-quality', roles: ['lab_manager'] },
   { path: '/api/reads/[read]', roles: STAFF },
   { path: '/api/images/[image]/thumb', roles: STAFF },
   { path: '/api/images/[image]/display', roles: STAFF },

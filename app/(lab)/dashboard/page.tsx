@@ -1,5 +1,5 @@
 import Link from 'next/link';
-import { collectionsAwaitingFirstRead, collectionsAwaitingSecondRead, collectionsReadyToSign, fileCounts, readsInProgress, reportsAmendedNotResigned, seasonOverview, userOverview } from '@/db/queries/dashboard';
+import { collectionsAwaitingFirstRead, collectionsAwaitingSecondRead, collectionsReadyToSign, collectionsToSettle, fileCounts, readsInProgress, reportsAmendedNotResigned, seasonOverview, userOverview } from '@/db/queries/dashboard';
 import { getLabSettings } from '@/db/queries/settings';
 import { countOf, fmtDate, fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
@@ -25,28 +25,19 @@ function Tiles({ tiles }: { tiles: { label: string; value: number | string; href
   );
 }
 
-/** A work list that another feature will fill: says what will appear, so the place is clear. */
-function Upcoming({ id, title, children }: { id: string; title: string; children: React.ReactNode }) {
-  return (
-    <section aria-labelledby={id} className="card">
-      <h2 id={id} className="mb-1">{title}</h2>
-      <p className="text-sm text-ink-soft">{children}</p>
-    </section>
-  );
-}
-
 export default async function DashboardPage() {
   const user = await requirePageUser(STAFF_ROLES);
   const { timeZone, secondReadRequired } = await getLabSettings();
   const reader = mayRead(user.role);
   const manager = user.role === 'lab_manager';
   const vet = user.role === 'veterinarian';
-  const [season, files, waiting, inProgress, waitingSecond, users, toSign, amended] = await Promise.all([
+  const [season, files, waiting, inProgress, waitingSecond, toSettle, users, toSign, amended] = await Promise.all([
     seasonOverview(timeZone),
     fileCounts(),
     reader ? collectionsAwaitingFirstRead() : Promise.resolve([]),
     reader ? readsInProgress(user) : Promise.resolve([]),
     reader ? collectionsAwaitingSecondRead(user) : Promise.resolve([]),
+    reader ? collectionsToSettle(user) : Promise.resolve([]),
     manager ? userOverview() : Promise.resolve(null),
     vet ? collectionsReadyToSign() : Promise.resolve([]),
     vet ? reportsAmendedNotResigned() : Promise.resolve([]),
@@ -133,9 +124,24 @@ export default async function DashboardPage() {
               </ul>
             )}
           </section>
-          <Upcoming id="to-settle" title="Disagreements to settle">
-            Collections whose two reads disagree on some cells will be listed here once settling is part of Fieldmark.
-          </Upcoming>
+          <section aria-labelledby="to-settle" className="card">
+            <h2 id="to-settle" className="mb-1">Disagreements to settle</h2>
+            <p className="mb-2 text-xs text-ink-faint">
+              Collections whose two submitted reads disagree on some cells, for their second reader{vet ? ' or any veterinarian' : ''}: decide each one in the settle view.
+            </p>
+            {toSettle.length === 0 ? (
+              <p className="text-sm text-ink-soft">No disagreements are waiting for you.</p>
+            ) : (
+              <ul className="divide-y divide-line text-sm">
+                {toSettle.map((c) => (
+                  <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
+                    <Link href={`/collections/${c.id}/settle`}>{c.stallion} · {fmtDateTime(c.collectedAt, timeZone)}</Link>
+                    <span className="text-ink-soft">{c.decided} of {c.total} settled · second read by {c.secondReader}</span>
+                  </li>
+                ))}
+              </ul>
+            )}
+          </section>
         </div>
       )}
       {vet && (

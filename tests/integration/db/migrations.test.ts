@@ -197,7 +197,8 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
         await trx.rollback();
       }
     },
-  },  '20261226000300_candidate_skips.ts': {
+  },
+  '20261226000300_candidate_skips.ts': {
     tables: ['candidate_skip_ops', 'candidate_skips'],
     async write() {
       // The only read belongs to the signed collection: a skip there is refused, so the step
@@ -236,6 +237,27 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       }
       const [indexes] = await db.raw('SHOW INDEX FROM `reads`');
       expect((indexes as { Key_name: string }[]).map((i) => i.Key_name)).toContain('reads_collection_id_index');
+    },
+  },
+  '20261226000200_settle_decisions.ts': {
+    tables: ['settle_decisions'],
+    async write() {
+      // The signed collection of the earlier steps refuses decisions; a collection of its own takes them.
+      [ids.settleCollection] = await db('collections').insert({ stallion_id: ids.stallion, collected_at: new Date('2026-06-01T09:00:00Z'), recorded_by: ids.user });
+      const read = (kind: string) => db('reads').insert({ collection_id: ids.settleCollection, kind, reader_id: ids.user, class_set_id: ids.set, class_set_snapshot: JSON.stringify(snapshot), target_cells: 200, status: 'submitted' });
+      [ids.settleFirst] = await read('first');
+      [ids.settleSecond] = await read('second');
+      await db('settle_decisions').insert({
+        op_id: '00000000-0000-4000-8000-00000000d001', collection_id: ids.settleCollection, first_read_id: ids.settleFirst, second_read_id: ids.settleSecond,
+        disagreement_key: `${ids.image}:${MARKS[0]!.id}:`, decision: 'other', class_key: 'bent_tail', decided_by: ids.user,
+      });
+    },
+    async check() {
+      expect(await db('settle_decisions').where({ collection_id: ids.settleCollection }).first('op_id', 'decision', 'class_key')).toEqual({ op_id: '00000000-0000-4000-8000-00000000d001', decision: 'other', class_key: 'bent_tail' });
+      const refused = await db('settle_decisions')
+        .insert({ op_id: '00000000-0000-4000-8000-00000000d002', collection_id: ids.collection, first_read_id: ids.settleFirst, second_read_id: ids.settleSecond, disagreement_key: 'x', decision: 'first', decided_by: ids.user })
+        .then(() => 'allowed', (e: { sqlMessage?: string }) => e.sqlMessage?.split(':')[0]);
+      expect(refused).toBe('signed report');
     },
   },
 };

@@ -110,6 +110,7 @@ describe('a signed collection', () => {
       ['change an image’s scale', db('field_images').where({ id: c.imageIds[0] }).update({ microns_per_pixel: 0.5 })],
       ['delete an image', db('field_images').where({ id: c.imageIds[1] }).delete()],
       ['write the report text', db('report_drafts').insert({ collection_id: c.collectionId, remarks: 'x', updated_by: tech })],
+      ['insert a settle decision', db('settle_decisions').insert({ op_id: crypto.randomUUID(), collection_id: c.collectionId, first_read_id: c.reads.first, second_read_id: c.reads.second, disagreement_key: `${mark.image_id}:${mark.id}:`, decision: 'first', decided_by: tech })],
     ];
     for (const [what, p] of statements) expect(`${what}: ${await refusal(p)}`).toBe(`${what}: ${LOCKED}`);
     // A mark cannot be moved into a signed collection's read from another collection either.

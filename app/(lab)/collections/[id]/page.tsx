@@ -10,6 +10,7 @@ import { collectionReportState } from '@/db/queries/reports';
 import { getLabSettings } from '@/db/queries/settings';
 import { MorphologySummary } from '@/components/reads/morphology-summary';
 import { StartReadButton } from '@/components/reads/start-read-button';
+import { SettleLink } from '@/components/settling/settle-link';
 import { nullIfNotFound } from '@/lib/api/errors';
 import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { FieldImages } from '@/components/images/gallery';
@@ -184,6 +185,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
               <StartReadButton key={a.kind} collectionId={c.id} kind={a.kind} label={actionLabel(a)} />
             ),
           )}
+          {!locked && <SettleLink user={user} collectionId={c.id} />}
         </div>
         {blind && (
           <p role="note" className="rounded-md bg-brand-light px-4 py-3 text-sm">
