@@ -11,7 +11,7 @@ import { signIn, USERS } from './support/auth';
 // One test per role, spread over the workers.
 test.describe.configure({ mode: 'parallel' });
 
-const EMAIL: Record<Exclude<Visitor, 'anonymous'>, string> = { technician: USERS.tech, veterinarian: USERS.vet, lab_manager: USERS.manager, client: USERS.owner };
+const EMAIL: Record<Exclude<Visitor, 'anonymous'>, string> = { technician: USERS.tech, veterinarian: USERS.vet, lab_manager: USERS.manager, client: USERS.owner, other_client: USERS.otherOwner };
 let ids: DemoIds;
 
 test.beforeAll(async () => {
