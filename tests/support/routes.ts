@@ -46,11 +46,13 @@ export function routeModules(): Promise<RouteModule[]> {
   return loaded;
 }
 
-/** The spec of the handler behind a table entry, or undefined for a handler not made by route() (next-auth). */
-export async function specOf(method: string, tablePath: string): Promise<RouteSpec | undefined> {
+/** The route file behind a table entry (its URL pattern, e.g. /api/reads/[id]/marks/[markId]) and the handler's spec (undefined: not made by route(), i.e. next-auth). */
+export async function handlerOf(method: string, tablePath: string): Promise<{ route: string; spec: RouteSpec | undefined }> {
   // Static segments win over dynamic ones (/api/images/[id]/candidates before /api/images/[id]/[variant]), as in Next.
   const dynamic = (r: string) => (r.match(/\[/g) ?? []).length;
   const mod = (await routeModules()).filter((m) => sameRoute(m.route, tablePath) && m.methods[method]).sort((a, b) => dynamic(a.route) - dynamic(b.route))[0];
   if (!mod) throw new Error(`No ${method} handler for ${tablePath}`);
-  return mod.methods[method]!.spec;
+  return { route: mod.route, spec: mod.methods[method]!.spec };
 }
+
+export const specOf = async (method: string, tablePath: string) => (await handlerOf(method, tablePath)).spec;

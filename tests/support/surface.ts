@@ -180,6 +180,14 @@ export const WRITE_ROUTES: WriteEntry[] = [
   { method: 'POST', path: '/api/users/[user]/password-link', roles: ['lab_manager'] },
 ];
 
+/**
+ * Every server action (each export of a 'use server' file), the page whose form calls it, and who may
+ * (the invitation's checks a one-time token, not a session). The bad-input corpus calls each with malformed arguments.
+ */
+export const SERVER_ACTIONS: { file: string; name: string; page: string; roles: readonly Visitor[] }[] = [
+  { file: 'app/invite/[token]/actions.ts', name: 'acceptInvitationAction', page: '/invite/[invitation]', roles: EVERYONE },
+];
+
 export type DemoIds = Record<
   'stallion' | 'client' | 'collection' | 'read' | 'image' | 'invitation' | 'healthEvent' | 'report' | 'code' | 'mark' | 'user' | 'classSet' | 'otherStallion' | 'otherReport',
   string

@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { APP_DIR as APP, filesNamed as files, patternOf, routeOf, sample } from '../support/routes';
-import { GET_ROUTES, PAGES, SIGNED_IN, WRITE_ROUTES } from '../support/surface';
+import { GET_ROUTES, PAGES, SERVER_ACTIONS, SIGNED_IN, WRITE_ROUTES } from '../support/surface';
 
 // tests/support/surface.ts must list every page, GET route and write route the app has, so the smoke
 // tests, the role matrix and the bad-input corpus reach all of them; and every page and server action
@@ -64,6 +64,12 @@ describe('role checks', () => {
       const forEveryone = SIGNED_IN.every((r) => entry.roles.includes(r));
       expect(source, rel).toMatch(forEveryone ? /requirePageUser\(/ : /requirePageUser\(\s*[^)\s]/);
     }
+  });
+
+  it('SERVER_ACTIONS lists every server action, and only those that exist', () => {
+    const sources = [...files(APP, 'actions.ts'), ...files(join(process.cwd(), 'lib'), 'actions.ts')].filter((f) => /^['"]use server['"]/m.test(readFileSync(f, 'utf8')));
+    const found = sources.flatMap((f) => [...readFileSync(f, 'utf8').matchAll(/export async function (\w+)/g)].map((m) => `${relative(process.cwd(), f).split(sep).join('/')}#${m[1]}`));
+    expect(found.sort()).toEqual(SERVER_ACTIONS.map((a) => `${a.file}#${a.name}`).sort());
   });
 
   it('every server action checks the role, or is one of the public ones that check a token', () => {
