@@ -3,14 +3,16 @@ import { expect, test, type Browser, type Page } from '@playwright/test';
 import knexFactory, { type Knex } from 'knex';
 import { fitToScreen } from '../../lib/scoring/viewport';
 import { generateField } from '../../lib/synthetic/generate-field';
+import { buildReportCollection } from '../support/report-collections';
 import { ScratchStack } from '../support/scratch-stack';
-import { signIn, USERS } from './support/auth';
+import { DEMO_PASSWORD, signIn, USERS } from './support/auth';
 
 // Faults, on a Fieldmark of their own (tests/support/scratch-stack.ts: own MariaDB, object store,
 // mail sink and app server, on ports +8), so stopping a service never disturbs the tests running
 // beside these: the database stopped mid-scoring, the object store down during an upload, the app
-// server killed mid-read, the mail relay down when a report is sent. (A PDF render failing once and
-// being retried: tests/integration/reports/queue-and-seams.test.ts.)
+// server killed mid-read, the mail relay down when a report is sent, and a signed report's PDF job
+// failing once in the app's own worker (the store down when it would keep the PDF) and retried. (The
+// renderer itself failing and retried, with the queue's other rules: tests/integration/reports/queue-and-seams.test.ts.)
 test.describe.configure({ mode: 'serial' });
 
 const W = 1600;
@@ -195,8 +197,35 @@ test('the mail relay down when a report is sent: recorded as not sent, and senda
   stack.services('start', 'mail');
 
   const sent = await send();
-  expect(sent.status(), await sent.text()).toBe(200);
+  expect(sent.status(), await sent.text()).toBe(201);
   expect(await latest()).toMatchObject({ status: 'sent' });
   expect(await db('report_sendings').where({ report_id: report.id, recipient: to }).pluck('status')).toEqual(['failed', 'sent']);
+  await page.context().close();
+});
+
+test('a signed report’s PDF job failing once in the app’s worker: retried, and the PDF is served', async ({ browser }) => {
+  test.setTimeout(120_000);
+  const page = await signedInPage(browser, USERS.vet);
+  const stallion = await db('stallions').orderBy('id').first('id');
+  const { collectionId } = await buildReportCollection(db, { reads: 'settled', stallionId: stallion.id, collectedAt: new Date(Date.now() - 86_400_000) });
+  const job = (reportId: number) => db('report_pdf_jobs').where({ report_id: reportId }).first('status', 'attempts', 'error');
+
+  stack.services('stop', 's3');
+  const signed = await page.request.post(`/api/collections/${collectionId}/report/sign`, { data: { password: DEMO_PASSWORD } });
+  expect(signed.status(), await signed.text()).toBe(201);
+  const reportId = ((await signed.json()) as { report: { id: number } }).report.id;
+  // The render's result could not be kept: the job waits for its retry, with the reason on it.
+  await expect.poll(async () => (await job(reportId))?.error ?? '', { timeout: 60_000 }).not.toBe('');
+  expect(['waiting', 'running']).toContain((await job(reportId)).status);
+  expect((await page.request.get(`/api/reports/${reportId}/pdf`)).status()).toBe(409);
+  stack.services('start', 's3');
+
+  await expect.poll(async () => (await job(reportId))?.status, { timeout: 60_000 }).toBe('done');
+  expect((await job(reportId)).error).toBeNull();
+  expect((await job(reportId)).attempts).toBeGreaterThanOrEqual(2);
+  const pdf = await page.request.get(`/api/reports/${reportId}/pdf`);
+  expect(pdf.status()).toBe(200);
+  expect(pdf.headers()['content-type']).toBe('application/pdf');
+  expect((await pdf.body()).subarray(0, 5).toString()).toBe('%PDF-');
   await page.context().close();
 });

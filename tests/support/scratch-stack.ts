@@ -41,6 +41,9 @@ export class ScratchStack {
       // The seeded images would keep a core busy finding cells; these tests do not need them.
       CANDIDATE_WORKER: '0',
       REPORT_PDF_POLL_MS: '300',
+      REPORT_PDF_RETRY_MS: '500',
+      // Retried soon, and often enough to outlast a service stopped for a few seconds.
+      REPORT_PDF_MAX_ATTEMPTS: '30',
     };
   }
 
