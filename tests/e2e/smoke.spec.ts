@@ -47,7 +47,7 @@ async function open(page: Page, path: string, problems: string[]) {
 }
 
 for (const role of Object.keys(EMAIL) as (keyof typeof EMAIL)[]) {
-  test(`every page a ${role.replace('_', ' ')} can reach opens cleanly`, async ({ page }) => {
+  test(`every page ${role === 'other_client' ? 'a client of another owner' : `a ${role.replace('_', ' ')}`} can reach opens cleanly`, async ({ page }) => {
     test.setTimeout(180_000);
     const problems = watch(page);
     await signIn(page, EMAIL[role]);

@@ -1,15 +1,16 @@
-// The app's whole surface: every page, every GET API route and every write route, with the roles
-// (and the second owner's client user) that may open it — the role matrix.
+// The app's whole surface — every page, GET API route, write route and server action, with the
+// visitors (each role, no session, and a client of another owner) that may use it: the role matrix.
 // A new page or route is added HERE (tests/unit/surface.test.ts fails until it is), and then
-// tests/integration/surface/role-matrix.test.ts runs the whole matrix (every entry × every visitor),
-// tests/integration/security/bad-input.test.ts sends every write route its corpus of malformed requests, and
-// the smoke tests open it for every role: tests/e2e/smoke.spec.ts (each page in the browser, no
-// 5xx, no page error, no console error), tests/integration/surface/get-routes.test.ts (each GET
-// route as each role: 200 for the roles listed, 401/403 for the others, never a 5xx) and
-// tests/integration/surface/staff-pages-rsc.test.ts (no staff page data reaches a client).
+// tests/integration/surface/role-matrix.test.ts tries every entry as every visitor (allowed: 200, or
+// 422 for a write route given an invalid input; refused: 401/403/404 or a redirect away),
+// tests/integration/security/bad-input.test.ts sends every route and server action its corpus of
+// malformed requests, tests/e2e/smoke.spec.ts opens each page in the browser as every role (no 5xx,
+// no page error, no console error) and tests/integration/surface/staff-pages-rsc.test.ts checks no
+// staff page data reaches a client.
 //
-// Paths name demo records in brackets — [stallion], [collection], [read], [image], [client],
-// [invitation], [report], [code] — which demoIds() looks up in the seeded database at test time.
+// Paths name demo records in brackets — [stallion], [collection], [read], [image], [client], [mark],
+// [user], [classSet], [invitation], [report], [code], [otherStallion], [otherReport] — which demoIds()
+// looks up in the seeded database at test time.
 import type { Knex } from 'knex';
 import type { Role } from '../../lib/auth/roles';
 import { DEMO_CLIENT_USER_EMAIL, DEMO_FEVER, DEMO_OTHER_CLIENT_USER_EMAIL } from '../../lib/demo/scenario';
