@@ -1,11 +1,11 @@
 // A whole Fieldmark of its own for the fault tests: MariaDB, the S3 fake and the mail sink on
 // ports a fixed step above this run's own (+8; the service-script test uses +5), a data folder
-// in the system's temporary folder, the demo seeded, and an app server (the run's own build) on
-// its own port. The faults stop and start its services and its server, never the suite's.
+// beside the run's own (`.data/faults` for the test profile), the demo seeded, and an app server
+// (the run's own build) on its own port. The faults stop and start its services and its server,
+// never the suite's. A stack left running by an interrupted run is stopped before a new one starts.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
 
 export type Service = 'db' | 's3' | 'mail';
 
@@ -13,7 +13,7 @@ const STEP = 8;
 const near = (name: string, fallback: number) => String(Number(process.env[name] ?? fallback) + STEP);
 
 export class ScratchStack {
-  readonly dir = mkdtempSync(join(tmpdir(), 'fm-fault-'));
+  readonly dir = resolve(process.env.DATA_DIR ?? '.data/test', '..', 'faults');
   readonly port = near('PORT', 3100);
   readonly url = `http://localhost:${this.port}`;
   readonly env: NodeJS.ProcessEnv;
@@ -57,8 +57,25 @@ export class ScratchStack {
     this.run(['scripts/services.sh', cmd, ...(service ? [service] : [])]);
   }
 
-  /** Services, schema and demo data, then the app. */
+  private get appPidFile() {
+    return join(this.dir, 'app.pid');
+  }
+
+  /** Services, schema and demo data, then the app — after stopping whatever an interrupted run left. */
   async up() {
+    if (existsSync(this.dir)) {
+      if (existsSync(this.appPidFile)) {
+        try {
+          process.kill(-Number(readFileSync(this.appPidFile, 'utf8')), 'SIGKILL');
+        } catch {
+          /* long gone */
+        }
+      }
+      this.services('stop');
+      rmSync(this.dir, { recursive: true, force: true });
+    }
+    mkdirSync(this.dir, { recursive: true });
+    if (await this.answers()) throw new Error(`port ${this.port} is in use; the fault tests need it for their own app server`);
     this.services('start');
     this.run(['scripts/with-env.sh', 'npx', 'tsx', 'scripts/db.ts', 'migrate']);
     this.run(['scripts/with-env.sh', 'npx', 'tsx', 'scripts/db.ts', 'seed']);
@@ -67,6 +84,7 @@ export class ScratchStack {
 
   async startApp() {
     this.app = spawn('bash', ['scripts/with-env.sh', 'node', 'server.mjs'], { env: this.env, detached: true, stdio: 'ignore' });
+    writeFileSync(this.appPidFile, String(this.app.pid));
     await this.waitForApp();
   }
 
@@ -84,14 +102,19 @@ export class ScratchStack {
     this.app = undefined;
   }
 
+  private async answers(): Promise<boolean> {
+    try {
+      return (await fetch(`${this.url}/api/health`)).ok;
+    } catch {
+      return false;
+    }
+  }
+
   async waitForApp(timeoutMs = 60_000) {
     const until = Date.now() + timeoutMs;
     while (Date.now() < until) {
-      try {
-        if ((await fetch(`${this.url}/api/health`)).ok) return;
-      } catch {
-        /* not up yet */
-      }
+      if (this.app?.exitCode != null) throw new Error(`the scratch app on ${this.url} exited (${this.app.exitCode})`);
+      if (await this.answers()) return;
       await new Promise((r) => setTimeout(r, 250));
     }
     throw new Error(`the scratch app on ${this.url} did not answer`);
