@@ -27,16 +27,19 @@ const EMAIL: Record<Exclude<Visitor, 'anonymous'>, string> = {
   other_client: USERS.otherOwner,
 };
 let ids: DemoIds;
+/** The demo owner's stallion: a refused answer to anyone else must not name him. */
+let ownedName: string;
 const sessions = {} as Record<Visitor, Session>;
 
 beforeAll(async () => {
   ids = await demoIds(testDb());
+  ownedName = (await testDb()('stallions').where({ id: ids.stallion }).first('name')).name;
   sessions.anonymous = new Session();
   for (const [visitor, email] of Object.entries(EMAIL)) sessions[visitor as Visitor] = await signedIn(email);
 });
 
 type Outcome = 'allow' | 'deny' | 'other';
-type Probe = { label: string; outcome: Outcome; status: number };
+type Probe = { label: string; outcome: Outcome; status: number; body?: string };
 
 async function probePage(visitor: Visitor, path: string): Promise<Probe> {
   const url = fill(path, ids);
@@ -51,14 +54,14 @@ async function probePage(visitor: Visitor, path: string): Promise<Probe> {
   if (res.status === 200) outcome = streamedAway ? 'deny' : 'allow';
   else if (redirected) outcome = sentAway ? 'deny' : 'allow';
   else if (res.status === 404) outcome = 'deny';
-  return { label: `page ${url}`, status: res.status, outcome };
+  return { label: `page ${url}`, status: res.status, outcome, body: html };
 }
 
 async function probeGet(visitor: Visitor, path: string): Promise<Probe> {
   const url = fill(path, ids);
   const res = await sessions[visitor].fetch(url);
-  await res.arrayBuffer();
-  return { label: `GET ${url}`, status: res.status, outcome: res.status === 200 ? 'allow' : [401, 403, 404].includes(res.status) ? 'deny' : 'other' };
+  const body = await res.text();
+  return { label: `GET ${url}`, status: res.status, outcome: res.status === 200 ? 'allow' : [401, 403, 404].includes(res.status) ? 'deny' : 'other', body };
 }
 
 async function probeWrite(visitor: Visitor, entry: WriteEntry): Promise<Probe> {
@@ -90,6 +93,8 @@ describe('the role matrix', () => {
     const count = (f: (r: (typeof rows)[number]) => boolean) => rows.filter(f).length;
     const unexpectedAllows = rows.filter((r) => r.expected === 'deny' && r.probe.outcome !== 'deny');
     const unexpectedDenies = rows.filter((r) => r.expected === 'allow' && r.probe.outcome !== 'allow');
+    // A refusal shows nothing of the record: the other owner's client never sees the demo owner's stallion named.
+    const leaks = rows.filter((r) => r.visitor === 'other_client' && r.expected === 'deny' && r.probe.body?.includes(ownedName));
     const lines = VISITORS.map((v) => {
       const mine = rows.filter((r) => r.visitor === v);
       return `${v.padEnd(13)} ${String(mine.filter((r) => r.expected === 'allow').length).padStart(5)} ${String(mine.filter((r) => r.expected === 'deny').length).padStart(5)}`;
@@ -105,5 +110,6 @@ describe('the role matrix', () => {
     const show = (r: (typeof rows)[number]) => `${r.visitor}: ${r.probe.label} → ${r.probe.status} (expected ${r.expected})`;
     expect(unexpectedAllows.map(show), 'unexpected allows').toEqual([]);
     expect(unexpectedDenies.map(show), 'unexpected denies').toEqual([]);
+    expect(leaks.map(show), `refusals naming ${ownedName}`).toEqual([]);
   });
 });
