@@ -270,12 +270,13 @@ export function corpusFor(route: RouteInput): BadRequest[] {
 /**
  * An upload route's corpus (the raw file as the body, its name and scale in the query): path-like
  * file names, files that are not images, an empty and an oversize file — and a real image sent to a
- * collection whose signed report locks it and to one that does not exist, which must leave nothing
- * in the database or the object store.
+ * collection whose signed report locks it (`lockedCollectionPath`, the route's path for one) and to one
+ * that does not exist, which must leave nothing in the database or the object store.
  */
-export function uploadCorpusFor(route: RouteInput, image: Uint8Array, maxBytes: number): BadRequest[] {
+export function uploadCorpusFor(route: RouteInput, image: Uint8Array, maxBytes: number, lockedCollectionPath: string | null): BadRequest[] {
   const out: BadRequest[] = [];
-  const locked = route.fill(route.path);
+  // A real image only ever goes where it must be refused: a locked collection, or none at all.
+  const locked = lockedCollectionPath ?? unknownPath(route.path);
   const q = route.exampleQuery ?? {};
   const push = (kind: string, path: string, body: Uint8Array, name: string) =>
     out.push({ kind, method: route.method, path: `${path}${queryString({ ...q, name })}`, headers: { 'content-type': 'application/octet-stream' }, body, expect: '4xx' });

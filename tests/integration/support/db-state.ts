@@ -7,11 +7,12 @@ import type { Knex } from 'knex';
  * Tables left out of the comparison, and why:
  * - sign_in_limits: the sign-in limiter's counters; a refused sign-in (or a wrong sign-off password) is counted on purpose.
  * - audit_log: compared apart (auditSince): a refusal may be recorded, nothing else may.
- * - candidate_jobs, candidates, report_pdf_jobs: the instance's background workers lease, retry and finish
- *   jobs on their own clock; only their row counts are compared (a request could only add jobs).
+ * - candidate_jobs, report_pdf_jobs: the instance's background workers lease, retry and finish jobs on their
+ *   own clock; only their row counts are compared (a job row is only added with a new image or a new signed version).
+ * - candidates: the cells a detection job found, written by the worker when a job (queued before) finishes.
  */
 export const CHANGES_ON_ITS_OWN = ['sign_in_limits', 'audit_log', 'candidate_jobs', 'candidates', 'report_pdf_jobs'];
-const COUNTED_ONLY = ['candidate_jobs', 'candidates', 'report_pdf_jobs'];
+export const COUNTED_ONLY = ['candidate_jobs', 'report_pdf_jobs'];
 
 export type DbState = { tables: Record<string, string>; auditMaxId: number };
 
