@@ -2,7 +2,7 @@
 // handlers made by route() (lib/api/handler.ts), what the wrapper checks (roles, params, query and
 // body schemas, on `handler.spec`). The role matrix and the bad-input corpus take their schemas from here,
 // so a route is never tested against a copy of its schema.
-import { readdirSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
 import type { RouteSpec } from '../../lib/api/handler';
 
@@ -56,3 +56,11 @@ export async function handlerOf(method: string, tablePath: string): Promise<{ ro
 }
 
 export const specOf = async (method: string, tablePath: string) => (await handlerOf(method, tablePath)).spec;
+
+/** A server action's id, from the build's manifest (the browser finds it in the page's script). */
+export function actionId(file: string, name: string): string {
+  const manifest = JSON.parse(readFileSync(join(process.env.NEXT_DIST_DIR ?? '.next', 'server', 'server-reference-manifest.json'), 'utf8')) as { node: Record<string, { filename: string; exportedName: string }> };
+  const found = Object.entries(manifest.node).find(([, a]) => a.filename === file && a.exportedName === name);
+  if (!found) throw new Error(`server action ${file}#${name} is not in the build (${process.env.NEXT_DIST_DIR ?? '.next'})`);
+  return found[0];
+}

@@ -1,9 +1,7 @@
-import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { corpusFor, uploadCorpusFor, type BadRequest, type RouteInput } from '../../support/bad-input';
-import { handlerOf } from '../../support/routes';
+import { actionId, handlerOf } from '../../support/routes';
 import { demoIds, fill, GET_ROUTES, SERVER_ACTIONS, WRITE_ROUTES, type DemoIds, type ExampleContext, type Visitor, type WriteEntry } from '../../support/surface';
 import { auditSince, CHANGES_ON_ITS_OWN, COUNTED_ONLY, dbState, jobsIdle, type DbState } from '../support/db-state';
 import { closeTestDb, testDb } from '../support/db';
@@ -61,14 +59,6 @@ async function send(session: Session, r: BadRequest): Promise<Problem | null> {
   }
   if (typeof message !== 'string' || message.length < 12) return `${what}: no message a person can act on: ${text.slice(0, 120)}`;
   return null;
-}
-
-/** A server action's id, from the build's manifest (the browser finds it in the page's script). */
-function actionId(file: string, name: string): string {
-  const manifest = JSON.parse(readFileSync(join(process.env.NEXT_DIST_DIR ?? '.next', 'server', 'server-reference-manifest.json'), 'utf8')) as { node: Record<string, { filename: string; exportedName: string }> };
-  const found = Object.entries(manifest.node).find(([, a]) => a.filename === file && a.exportedName === name);
-  if (!found) throw new Error(`server action ${file}#${name} is not in the build`);
-  return found[0];
 }
 
 /**

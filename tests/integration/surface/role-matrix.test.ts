@@ -1,16 +1,18 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { specOf } from '../../support/routes';
-import { demoIds, fill, GET_ROUTES, PAGES, VISITORS, WRITE_ROUTES, type DemoIds, type Visitor, type WriteEntry } from '../../support/surface';
+import { actionId, specOf } from '../../support/routes';
+import { APP_URL } from '../support/http';
+import { demoIds, fill, GET_ROUTES, PAGES, SERVER_ACTIONS, VISITORS, WRITE_ROUTES, type DemoIds, type Visitor, type WriteEntry } from '../../support/surface';
 import { closeTestDb, testDb } from '../support/db';
 import { Session, signedIn, USERS } from '../support/http';
 
-// The role matrix: every page, GET route and write route of tests/support/surface.ts × every visitor
+// The role matrix: every page, GET route, write route and server action of tests/support/surface.ts × every visitor
 // (no session, each role, and a client of another owner), against the expected allow or deny.
 //
 //   page        allow: 200 with the page, or a redirect on (e.g. / to the role's home)
 //               deny:  a redirect to /sign-in or /no-access (3xx, or from inside the stream), or not found (404, or streamed)
 //   GET route   allow: 200                        deny: 401, 403, or 404 (a record the visitor may not see)
 //   write route allow: 422 invalid_input          deny: 401 or 403
+//   server action allow: its state with a message deny: a redirect to /sign-in or /no-access
 //
 // A write route gets an input its wrapper refuses only after the role check: an id of 0 in every
 // bracketed segment (ids are positive), or — a route without ids — a JSON body that is an array
@@ -82,13 +84,31 @@ async function probeWrite(visitor: Visitor, entry: WriteEntry): Promise<Probe> {
   return { label: `${entry.method} ${url}`, status: res.status, outcome };
 }
 
+/**
+ * A server action, called as its form would be but with nothing filled in: allowed, it answers with
+ * its state and a message (the fields to fix); refused, it redirects to /sign-in or /no-access.
+ */
+async function probeAction(visitor: Visitor, action: (typeof SERVER_ACTIONS)[number]): Promise<Probe> {
+  const url = fill(action.page, ids);
+  const res = await sessions[visitor].fetch(url, {
+    method: 'POST',
+    headers: { 'next-action': actionId(action.file, action.name), origin: new URL(APP_URL).origin, 'content-type': 'text/plain;charset=UTF-8' },
+    body: '[{},{}]',
+  });
+  const body = await res.text();
+  const redirected = /NEXT_REDIRECT;\w+;\/(sign-in|no-access)|^\/(sign-in|no-access)/.test(body + (res.headers.get('x-action-redirect') ?? ''));
+  const outcome: Outcome = redirected ? 'deny' : res.status === 200 && /"message":"[^"]+"/.test(body) ? 'allow' : 'other';
+  return { label: `server action ${action.name} on ${url}`, status: res.status, outcome };
+}
+
 describe('the role matrix', () => {
-  it('every page, GET route and write route × every visitor: no unexpected allow, no unexpected deny', { timeout: 240_000 }, async () => {
+  it('every page, GET route, write route and server action × every visitor: no unexpected allow, no unexpected deny', { timeout: 240_000 }, async () => {
     const rows: { visitor: Visitor; expected: 'allow' | 'deny'; probe: Probe }[] = [];
     for (const visitor of VISITORS) {
       for (const p of PAGES) rows.push({ visitor, expected: p.roles.includes(visitor) ? 'allow' : 'deny', probe: await probePage(visitor, p.path) });
       for (const r of GET_ROUTES) rows.push({ visitor, expected: r.roles.includes(visitor) ? 'allow' : 'deny', probe: await probeGet(visitor, r.path) });
       for (const w of WRITE_ROUTES) rows.push({ visitor, expected: w.roles.includes(visitor) ? 'allow' : 'deny', probe: await probeWrite(visitor, w) });
+      for (const a of SERVER_ACTIONS) rows.push({ visitor, expected: a.roles.includes(visitor) ? 'allow' : 'deny', probe: await probeAction(visitor, a) });
     }
     const count = (f: (r: (typeof rows)[number]) => boolean) => rows.filter(f).length;
     const unexpectedAllows = rows.filter((r) => r.expected === 'deny' && r.probe.outcome !== 'deny');
@@ -101,7 +121,7 @@ describe('the role matrix', () => {
     });
     console.log(
       [
-        `role matrix: ${PAGES.length} pages + ${GET_ROUTES.length} GET routes + ${WRITE_ROUTES.length} write routes × ${VISITORS.length} visitors = ${rows.length} cells`,
+        `role matrix: ${PAGES.length} pages + ${GET_ROUTES.length} GET routes + ${WRITE_ROUTES.length} write routes + ${SERVER_ACTIONS.length} server actions × ${VISITORS.length} visitors = ${rows.length} cells`,
         `visitor       allow  deny`,
         ...lines,
         `unexpected allows: ${unexpectedAllows.length}, unexpected denies: ${unexpectedDenies.length}, 5xx: ${count((r) => r.probe.status >= 500)}`,
