@@ -5,6 +5,7 @@ import useSWR from 'swr';
 import type { FieldImage } from '@/db/queries/images';
 import { apiFetch, swrFetcher } from '@/lib/api/fetcher';
 import { fmt } from '@/lib/format';
+import { READ_KINDS, READ_KIND_LABELS } from '@/lib/reads/kinds';
 import { CalibrateDialog } from './calibrate-dialog';
 import { UploadZone } from './upload-zone';
 
@@ -44,7 +45,7 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
               {img.width} × {img.height} px · {img.format.toUpperCase()}{img.bitDepth > 8 ? ` ${img.bitDepth}-bit` : ''} · {fmt(img.bytes / 1048576)} MB
               <br />
               {img.micronsPerPixel ? `${fmt(img.micronsPerPixel, 4)} µm/px` : 'no scale set'}
-              {img.magnification ? ` · ${img.magnification}×` : ''} · cells marked: {img.marks.first}
+              {img.magnification ? ` · ${img.magnification}×` : ''} · cells marked: {markedText(img)}
             </p>
             <CandidateState image={img} onRerun={() => act(() => apiFetch(`/api/images/${img.id}/candidates`, { method: 'POST' }), `Finding cells again on ${img.fileName}.`)} />
             {canUpload && (
@@ -55,14 +56,20 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
                 <button type="button" className="btn-secondary px-2 py-1 text-xs" disabled={i === images.length - 1} onClick={() => act(() => apiFetch(`/api/images/${img.id}`, { method: 'PATCH', body: JSON.stringify({ move: 'down' }) }), 'Order changed.')}>
                   Later<span className="sr-only"> {img.fileName}</span>
                 </button>
-                <button type="button" className="btn-secondary px-2 py-1 text-xs" onClick={() => setCalibrating(img)}>
+                <button
+                  type="button"
+                  className="btn-secondary px-2 py-1 text-xs"
+                  disabled={img.marked}
+                  title={img.marked ? 'Cells are marked on this image in a read: its scale cannot change' : undefined}
+                  onClick={() => setCalibrating(img)}
+                >
                   Calibrate<span className="sr-only"> on {img.fileName}</span>
                 </button>
                 <button
                   type="button"
                   className="btn-secondary px-2 py-1 text-xs text-danger"
-                  disabled={img.marks.first + img.marks.second + img.marks.settled > 0}
-                  title={img.marks.first + img.marks.second + img.marks.settled > 0 ? 'Cells are marked on this image in a read' : undefined}
+                  disabled={img.marked}
+                  title={img.marked ? 'Cells are marked on this image in a read' : undefined}
                   onClick={() => window.confirm(`Delete ${img.fileName}? The original and its copies are removed.`) && act(() => apiFetch(`/api/images/${img.id}`, { method: 'DELETE' }), `${img.fileName} deleted.`)}
                 >
                   Delete<span className="sr-only"> {img.fileName}</span>
@@ -90,6 +97,12 @@ export function FieldImages({ collectionId, canUpload, defaults }: { collectionI
       )}
     </div>
   );
+}
+
+/** The cells marked in each read the viewer may see, e.g. "30 (first read), 29 (second read)". */
+function markedText(img: FieldImage): string {
+  const parts = READ_KINDS.filter((k) => img.marks[k] > 0).map((k) => `${img.marks[k]} (${READ_KIND_LABELS[k].toLowerCase()})`);
+  return parts.length ? parts.join(', ') : 'none';
 }
 
 /** The search for candidate cells on one image: its state in words, and a button to search again. */

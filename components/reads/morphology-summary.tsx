@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import type { ReadMorphology } from '@/db/queries/morphology';
 import { fmt } from '@/lib/format';
-import { OPEN, READ_KIND_LABELS, READ_STATUS_LABELS, SUBMITTED } from '@/lib/reads/kinds';
+import { OPEN, READ_KIND_LABELS, READ_STATUS_LABELS, SUBMITTED, readLabel } from '@/lib/reads/kinds';
 
 /** Per-read figures of a collection, straight from the morphology engine (server component). */
 export function MorphologySummary({ reads }: { reads: ReadMorphology[] }) {
@@ -10,11 +10,12 @@ export function MorphologySummary({ reads }: { reads: ReadMorphology[] }) {
     <div className="grid gap-4 lg:grid-cols-2">
       {reads.map((r) => {
         const m = r.morphology;
-        const label = READ_KIND_LABELS[r.kind];
+        const label = readLabel(r);
+        const region = `${READ_KIND_LABELS[r.kind]} by ${r.readerName} (read ${r.number})`;
         const defects = new Map(m.defectFrequency.perClass.map((d) => [d.classId, d]));
         const tagged = m.defectFrequency.totalDefects > m.abnormalCount;
         return (
-          <section key={r.readId} aria-label={`${label} by ${r.readerName}`} className="card space-y-2">
+          <section key={r.readId} aria-label={region} className="card space-y-2">
             <p className="flex flex-wrap items-baseline justify-between gap-2">
               <span className="font-medium">{label} · {r.readerName}</span>
               <span className={`text-sm ${r.status === SUBMITTED ? 'text-ok' : 'text-warn'}`}>{READ_STATUS_LABELS[r.status]}</span>
@@ -28,7 +29,7 @@ export function MorphologySummary({ reads }: { reads: ReadMorphology[] }) {
               {m.targetReached ? ' — target reached' : ''}
               {m.nonSpermCounted > 0 && ` · ${m.nonSpermCounted} non-sperm cells tallied apart`}
             </p>
-            <table aria-label={`${label} counts per class`}>
+            <table aria-label={`${READ_KIND_LABELS[r.kind]} counts per class`}>
               <thead>
                 <tr>
                   <th className="th">Class</th>

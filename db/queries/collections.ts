@@ -4,6 +4,7 @@ import { db } from '@/db/knex';
 import { whereContains } from '@/db/queries/search';
 import { writeAudit } from '@/db/queries/audit';
 import { morphologyByCollection, type ReadMorphology } from '@/db/queries/morphology';
+import { recountAdvisedAmong } from '@/db/queries/agreement';
 import { windowFlagsFor, type CollectionFlag } from '@/db/queries/health-events';
 import type { Row } from '@/db/row';
 import { ApiError, notFound } from '@/lib/api/errors';
@@ -40,14 +41,17 @@ export type Collection = {
   daysSincePrevious: number | null;
   /** Sperm cells counted in the first read and % normal among them (null before the read starts); from the morphology engine. */
   firstRead: { cells: number; pctNormal: number | null; status: ReadStatus } | null;
+  /** The first and second reads' % normal differ beyond the acceptable difference, and nothing is settled yet (lib/reads/policy.ts recountAdvised). */
+  recountAdvised: boolean;
   /** Inside a health event's spermatogenic window: each event covering it with its day, and when the merged stretch clears. */
   window: CollectionFlag;
 };
 
 const DAY_MS = 864e5;
 
-function toCollection(r: Row, reads: readonly ReadMorphology[], window: CollectionFlag): Collection {
-  const first = reads.find((x) => x.kind === FIRST_READ);
+function toCollection(r: Row, reads: readonly ReadMorphology[], window: CollectionFlag, recount: boolean): Collection {
+  // The reads come visible to the actor and in read order: the latest first read they may see.
+  const first = reads.findLast((x) => x.kind === FIRST_READ);
   const at = new Date(r.collected_at);
   const prev = r.previous_at ? new Date(r.previous_at) : null;
   return {
@@ -73,6 +77,7 @@ function toCollection(r: Row, reads: readonly ReadMorphology[], window: Collecti
     remarks: r.remarks,
     daysSincePrevious: prev ? Math.round(((at.getTime() - prev.getTime()) / DAY_MS) * 10) / 10 : null,
     firstRead: first ? { cells: first.morphology.cellsCounted, pctNormal: first.morphology.pctNormal, status: first.status } : null,
+    recountAdvised: recount,
     window,
   };
 }
@@ -99,7 +104,8 @@ async function withMorphology(actor: CurrentUser, rows: Row[]): Promise<Collecti
     morphologyByCollection(actor, rows.map((r) => r.id)),
     windowFlagsFor(actor, rows.map((r) => ({ id: r.id, stallionId: r.stallion_id, collectedAt: new Date(r.collected_at).toISOString() }))),
   ]);
-  return rows.map((r) => toCollection(r, reads.get(r.id) ?? [], flags.get(r.id) ?? null));
+  const recount = await recountAdvisedAmong(actor, reads);
+  return rows.map((r) => toCollection(r, reads.get(r.id) ?? [], flags.get(r.id) ?? null, recount.has(r.id)));
 }
 
 const SORT_COLUMNS = {

@@ -5,9 +5,10 @@ import { collectionReport } from '@/db/queries/report-core';
 import { getLabSettings } from '@/db/queries/settings';
 import type { Row } from '@/db/row';
 import type { CurrentUser } from '@/lib/auth/session';
-import { ROLES, type Role } from '@/lib/auth/roles';
+import { READER_ROLES, ROLES, type Role } from '@/lib/auth/roles';
+import { recountAdvisedAmong } from '@/db/queries/agreement';
 import { FIRST_READ, OPEN, SECOND_READ, SETTLED_READ, SUBMITTED, type ReadKind } from '@/lib/reads/kinds';
-import { mayViewMarks } from '@/lib/reads/policy';
+import { visibleReadsOfCollections } from '@/lib/reads/policy';
 import { labYear } from '@/lib/time/lab-time';
 
 /*
@@ -73,7 +74,7 @@ export async function collectionsAwaitingFirstRead(limit = 10): Promise<Awaiting
 
 export type ReadInProgress = { readId: number; kind: ReadKind; collectionId: number; collectedAt: string; stallion: string; readerId: number; readerName: string; mine: boolean; marks: number };
 
-/** Open reads the user may see, their own first. */
+/** Open reads the user may see (lib/reads/policy.ts visibleReads: an open second read only to its reader), their own first. */
 export async function readsInProgress(user: CurrentUser, limit = 10): Promise<ReadInProgress[]> {
   const rows: Row[] = await db('reads as r')
     .join('collections as k', 'k.id', 'r.collection_id')
@@ -82,11 +83,19 @@ export async function readsInProgress(user: CurrentUser, limit = 10): Promise<Re
     .where('r.status', OPEN)
     .orderByRaw('r.reader_id = ? desc', [user.id])
     .orderBy('r.started_at', 'desc')
-    .limit(limit)
+    .limit(limit * 3)
     .select('r.id', 'r.kind', 'r.status', 'r.reader_id', 'k.id as collection_id', 'k.collected_at', 's.name as stallion', 'u.name as reader_name')
     .select(db('marks as m').whereRaw('m.read_id = r.id').where('m.deleted', false).count('*').as('marks'));
+  // The rule needs every read of those collections (an open second read of the user's blinds the rest).
+  const siblings: Row[] = rows.length
+    ? await db('reads').whereIn('collection_id', [...new Set(rows.map((r) => r.collection_id))]).select('id', 'collection_id', 'kind', 'status', 'reader_id')
+    : [];
+  const visible = new Set(
+    visibleReadsOfCollections(user, siblings.map((r) => ({ id: r.id as number, collectionId: r.collection_id as number, kind: r.kind as ReadKind, status: r.status, readerId: r.reader_id as number }))).map((r) => r.id),
+  );
   return rows
-    .filter((r) => mayViewMarks(user, { id: r.id, kind: r.kind, status: r.status, readerId: r.reader_id }))
+    .filter((r) => visible.has(r.id))
+    .slice(0, limit)
     .map((r) => ({
       readId: r.id,
       kind: r.kind,
@@ -98,6 +107,52 @@ export async function readsInProgress(user: CurrentUser, limit = 10): Promise<Re
       mine: r.reader_id === user.id,
       marks: Number(r.marks),
     }));
+}
+
+export type AwaitingSecondRead = { id: number; collectedAt: string; stallion: string; firstReader: string; recount: boolean };
+
+/**
+ * The second reader's work list: collections whose first read is submitted and that wait for a
+ * second read the user may start (never their own first reads), newest first. Where the lab setting
+ * "second read required" is off nothing waits for a plain second read, so only recounts are listed
+ * (first and second reads whose % normal differ beyond the acceptable difference); a second read
+ * can still be started from the collection page. Unsigned collections only (a signed one is locked).
+ */
+export async function collectionsAwaitingSecondRead(user: CurrentUser, limit = 10): Promise<AwaitingSecondRead[]> {
+  if (!READER_ROLES.includes(user.role)) return [];
+  const settings = await getLabSettings();
+  const exists = (kinds: ReadKind[], status?: string) => (q: Knex.QueryBuilder) => {
+    q.select(db.raw('1')).from('reads as r').whereRaw('r.collection_id = k.id').whereIn('r.kind', kinds);
+    if (status) q.where('r.status', status);
+  };
+  const base = () =>
+    db('collections as k')
+      .join('stallions as s', 's.id', 'k.stallion_id')
+      .join('reads as f', function () {
+        this.on('f.collection_id', 'k.id').andOnVal('f.kind', FIRST_READ).andOnVal('f.status', SUBMITTED);
+      })
+      .join('users as u', 'u.id', 'f.reader_id')
+      .whereNull('k.signed_report_id')
+      .whereNot('f.reader_id', user.id)
+      .whereNotExists(exists([SECOND_READ], OPEN))
+      .whereNotExists(exists([SETTLED_READ]))
+      .orderBy('k.collected_at', 'desc')
+      .select('k.id', 'k.collected_at', 's.name as stallion', 'u.name as first_reader');
+  const plain: Row[] = settings.secondReadRequired ? await base().whereNotExists(exists([SECOND_READ])).limit(limit) : [];
+  // Recount candidates: a submitted second read by someone else; whether they differ takes the pairing.
+  const paired: Row[] = await base()
+    .whereExists(exists([SECOND_READ], SUBMITTED))
+    .whereNotExists((q) => q.select(db.raw('1')).from('reads as x').whereRaw('x.collection_id = k.id').where('x.kind', SECOND_READ).where('x.reader_id', user.id))
+    .limit(limit);
+  const recount = await recountAdvisedAmong(user, new Map(paired.map((r) => [r.id as number, [{ kind: FIRST_READ, status: SUBMITTED }, { kind: SECOND_READ, status: SUBMITTED }] as const])));
+  const out = [
+    ...paired.filter((r) => recount.has(r.id)).map((r) => ({ r, recount: true })),
+    ...plain.map((r) => ({ r, recount: false })),
+  ];
+  return out
+    .sort((a, b) => new Date(b.r.collected_at).getTime() - new Date(a.r.collected_at).getTime())
+    .slice(0, limit)
+    .map(({ r, recount: rc }) => ({ id: r.id, collectedAt: new Date(r.collected_at).toISOString(), stallion: r.stallion, firstReader: r.first_reader, recount: rc }));
 }
 
 export type UserOverview = { active: Record<Role, number>; deactivated: number; invitationsOpen: number };

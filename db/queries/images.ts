@@ -14,7 +14,9 @@ import { UPLOAD_LIMITS } from '@/lib/images/limits';
 import { ObjectStoreError, storeFieldImage, type StoreImageInput } from '@/lib/images/store';
 import * as storage from '@/storage/s3';
 import type { Row } from '@/db/row';
-import { READ_KINDS, type ReadKind } from '@/lib/reads/kinds';
+import { READ_KINDS, type ReadKind, type ReadStatus } from '@/lib/reads/kinds';
+import { visibleReads } from '@/lib/reads/policy';
+import type { Knex } from 'knex';
 
 export type FieldImage = {
   id: number;
@@ -32,15 +34,21 @@ export type FieldImage = {
   optics: string | null;
   uploadedBy: string;
   createdAt: string;
-  /** Cells marked on this image in each kind of read (live marks only). */
+  /**
+   * Cells marked on this image in each kind of read the viewer may see (live marks; the latest
+   * such read of each kind; lib/reads/policy.ts visibleReads decides, so a blind second reader
+   * sees only their own read's count).
+   */
   marks: Record<ReadKind, number>;
+  /** Some read, seen by the viewer or not, has cells marked here: the image can be neither deleted nor rescaled. */
+  marked: boolean;
   /** The search for candidate cells: its state, how many were found, why it failed. */
   candidates: { status: 'waiting' | 'running' | 'done' | 'failed'; count: number; error: string | null };
   thumbUrl: string;
   displayUrl: string;
 };
 
-function toImage(r: Row, marks: Record<ReadKind, number>): FieldImage {
+function toImage(r: Row, marks: Record<ReadKind, number>, marked: boolean): FieldImage {
   return {
     id: r.id,
     collectionId: r.collection_id,
@@ -58,14 +66,15 @@ function toImage(r: Row, marks: Record<ReadKind, number>): FieldImage {
     uploadedBy: r.uploaded_by_name,
     createdAt: new Date(r.created_at).toISOString(),
     marks,
+    marked,
     candidates: { status: r.candidate_status ?? 'failed', count: Number(r.candidate_count ?? 0), error: r.candidate_status ? (r.candidate_error ?? null) : 'Finding cells was never queued for this image.' },
     thumbUrl: `/api/images/${r.id}/thumb`,
     displayUrl: `/api/images/${r.id}/display`,
   };
 }
 
-export async function listImages(collectionId: number): Promise<FieldImage[]> {
-  const [rows, counts] = await Promise.all([
+export async function listImages(actor: CurrentUser, collectionId: number): Promise<FieldImage[]> {
+  const [rows, reads, counts] = await Promise.all([
     db('field_images as i')
       .join('users as u', 'u.id', 'i.uploaded_by')
       .leftJoin('candidate_jobs as j', 'j.image_id', 'i.id')
@@ -73,24 +82,53 @@ export async function listImages(collectionId: number): Promise<FieldImage[]> {
       .orderBy('i.position')
       .select('i.*', 'u.name as uploaded_by_name', 'j.status as candidate_status', 'j.error as candidate_error')
       .select(db.raw('(select count(*) from candidates c where c.image_id = i.id) as candidate_count')),
-    // Live marks per image and kind of read, in one grouped query on the (image_id, read_id) index.
+    db('reads').where({ collection_id: collectionId }).orderBy('id').select('id', 'kind', 'status', 'reader_id') as Promise<Row[]>,
+    // Live marks per image and read, in one grouped query on the (image_id, read_id) index.
     db('marks as m')
       .join('field_images as i', 'i.id', 'm.image_id')
-      .join('reads as r', 'r.id', 'm.read_id')
       .where('i.collection_id', collectionId)
       .where('m.deleted', false)
-      .groupBy('m.image_id', 'r.kind')
-      .select('m.image_id', 'r.kind')
+      .groupBy('m.image_id', 'm.read_id')
+      .select('m.image_id', 'm.read_id')
       .count({ n: '*' }) as Promise<Row[]>,
   ]);
+  const refs = reads.map((r) => ({ id: r.id as number, kind: r.kind as ReadKind, status: r.status as ReadStatus, readerId: r.reader_id as number }));
+  // The latest visible read of each kind is the one counted.
+  const shown = new Map<number, ReadKind>();
+  for (const kind of READ_KINDS) {
+    const latest = visibleReads(actor, refs).filter((r) => r.kind === kind).at(-1);
+    if (latest) shown.set(latest.id, kind);
+  }
   const none = () => Object.fromEntries(READ_KINDS.map((k) => [k, 0])) as Record<ReadKind, number>;
   const byImage = new Map<number, Record<ReadKind, number>>();
+  const marked = new Set<number>();
   for (const c of counts) {
+    if (Number(c.n) > 0) marked.add(c.image_id);
+    const kind = shown.get(c.read_id);
+    if (!kind) continue;
     const marks = byImage.get(c.image_id) ?? none();
-    marks[c.kind as ReadKind] = Number(c.n);
+    marks[kind] = Number(c.n);
     byImage.set(c.image_id, marks);
   }
-  return rows.map((r) => toImage(r, byImage.get(r.id) ?? none()));
+  return rows.map((r) => toImage(r, byImage.get(r.id) ?? none(), marked.has(r.id)));
+}
+
+/**
+ * Refuses a change of scale on images with cells marked in any read (409): the pairing of two
+ * reads turns the lab's distance in µm into pixels with it, and the figures would move. Setting
+ * the scale an image already has changes nothing and passes.
+ */
+async function refuseRescaleOfMarked(trx: Knex.Transaction, images: Row[], micronsPerPixel: number | null): Promise<void> {
+  const changing = images.filter((i) => (i.microns_per_pixel == null ? null : Number(i.microns_per_pixel)) !== micronsPerPixel);
+  if (changing.length === 0) return;
+  const marked: Row[] = await trx('marks').whereIn('image_id', changing.map((i) => i.id)).where('deleted', false).distinct('image_id');
+  if (marked.length === 0) return;
+  const names = changing.filter((i) => marked.some((m) => m.image_id === i.id)).map((i) => i.file_name);
+  throw new ApiError(
+    409,
+    'scale_locked',
+    `The scale of ${names.length === 1 ? names[0] : `${names.length} images (${names.slice(0, 3).join(', ')}${names.length > 3 ? ' …' : ''})`} cannot change: cells are marked on ${names.length === 1 ? 'it' : 'them'} in a read, and the pairing of two reads measures distances with the scale. Set the scale before anyone marks cells.`,
+  );
 }
 
 export async function getImageRow(id: number) {
@@ -136,7 +174,7 @@ export async function uploadImage(
       const status = r.code === 'too_large' ? 413 : r.code === 'unsupported_format' || r.code === 'not_an_image' ? 415 : 422;
       throw new ApiError(status, r.code, `${meta.fileName}: ${r.message}`);
     }
-    const image = (await listImages(collectionId)).find((i) => i.id === r.id)!;
+    const image = (await listImages(actor, collectionId)).find((i) => i.id === r.id)!;
     return { image, duplicate: r.duplicate };
   } catch (err) {
     if (err instanceof ObjectStoreError) {
@@ -165,7 +203,10 @@ export async function updateImage(actor: CurrentUser, id: number, change: { move
         await trx('field_images').where({ id }).update({ position: neighbour.position });
       }
     }
-    if (change.micronsPerPixel !== undefined) await trx('field_images').where({ id }).update({ microns_per_pixel: change.micronsPerPixel });
+    if (change.micronsPerPixel !== undefined) {
+      await refuseRescaleOfMarked(trx, [img], change.micronsPerPixel);
+      await trx('field_images').where({ id }).update({ microns_per_pixel: change.micronsPerPixel });
+    }
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'field_image', entityId: id, before: { position: img.position, micronsPerPixel: img.microns_per_pixel }, after: change });
   });
 }
@@ -173,6 +214,8 @@ export async function updateImage(actor: CurrentUser, id: number, change: { move
 export async function setCollectionScale(actor: CurrentUser, collectionId: number, micronsPerPixel: number): Promise<number> {
   return db.transaction(async (trx) => {
     await requireRecord('collections', collectionId, trx);
+    const images: Row[] = await trx('field_images').where({ collection_id: collectionId }).forUpdate().select('id', 'file_name', 'microns_per_pixel');
+    await refuseRescaleOfMarked(trx, images, micronsPerPixel);
     const n = await trx('field_images').where({ collection_id: collectionId }).update({ microns_per_pixel: micronsPerPixel });
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'collection_scale', entityId: collectionId, after: { micronsPerPixel, images: n } });
     return n;

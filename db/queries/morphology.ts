@@ -5,8 +5,8 @@ import { json, type Row } from '@/db/row';
 import type { CurrentUser } from '@/lib/auth/session';
 import type { ClassSet } from '@/lib/class-sets/schema';
 import { morphologyOfRead, type CellCount, type Morphology } from '@/lib/morphology/engine';
-import type { ReadKind, ReadStatus } from '@/lib/reads/kinds';
-import { mayViewMarks } from '@/lib/reads/policy';
+import { numberReads, type ReadKind, type ReadStatus } from '@/lib/reads/kinds';
+import { visibleReadsOfCollections } from '@/lib/reads/policy';
 
 /*
  * The totals of reads, for every screen: one grouped query over the marks feeds the morphology
@@ -21,6 +21,8 @@ import { mayViewMarks } from '@/lib/reads/policy';
 export interface ReadMorphology {
   readId: number;
   collectionId: number;
+  /** Its place among the collection's reads, from 1 (lib/reads/kinds.ts numberReads). */
+  number: number;
   kind: ReadKind;
   status: ReadStatus;
   readerId: number;
@@ -51,14 +53,19 @@ export function cellCountsQuery(scope: ReadScope, options: MorphologyQueryOption
 }
 
 /**
- * The morphology of every read in scope that the actor may see (a blind second read stays out
- * until it is submitted), in read order.
+ * The morphology of every read in scope that the actor may see (lib/reads/policy.ts
+ * visibleReads: a blind second reader sees only their own read; nobody else sees an open second
+ * read), in read order. The visibility rule looks at every read of the collections involved, so
+ * they are loaded whatever the scope.
  */
 export async function morphologyOfReads(actor: CurrentUser, scope: ReadScope, options: MorphologyQueryOptions = {}): Promise<ReadMorphology[]> {
   const ids = 'readIds' in scope ? scope.readIds : scope.collectionIds;
   if (ids.length === 0) return [];
+  const collectionsOf = 'readIds' in scope ? db('reads').whereIn('id', [...scope.readIds]).select('collection_id') : [...scope.collectionIds];
   const [reads, groups] = await Promise.all([
-    inScope(db('reads as r').join('users as u', 'u.id', 'r.reader_id'), scope)
+    db('reads as r')
+      .join('users as u', 'u.id', 'r.reader_id')
+      .whereIn('r.collection_id', collectionsOf)
       .orderBy('r.id')
       .select('r.id', 'r.collection_id', 'r.kind', 'r.status', 'r.reader_id', 'r.target_cells', 'r.class_set_snapshot', 'u.name as reader_name') as Promise<Row[]>,
     cellCountsQuery(scope, options) as Promise<Row[]>,
@@ -71,13 +78,18 @@ export async function morphologyOfReads(actor: CurrentUser, scope: ReadScope, op
     if (list) list.push(row);
     else cellsByRead.set(g.read_id, [row]);
   }
-  return reads
-    .filter((r) => mayViewMarks(actor, { id: r.id, kind: r.kind, status: r.status, readerId: r.reader_id }))
-    .map((r) => {
+  const refs = reads.map((r) => ({ id: r.id as number, collectionId: r.collection_id as number, kind: r.kind as ReadKind, status: r.status as ReadStatus, readerId: r.reader_id as number, row: r }));
+  const numbers = new Map<number, number>();
+  for (const c of new Set(refs.map((r) => r.collectionId))) for (const [id, n] of numberReads(refs.filter((r) => r.collectionId === c))) numbers.set(id, n);
+  const wanted = 'readIds' in scope ? new Set(scope.readIds) : null;
+  return visibleReadsOfCollections(actor, refs)
+    .filter((ref) => !wanted || wanted.has(ref.id))
+    .map(({ row: r }) => {
       const classSet = json<ClassSet>(r.class_set_snapshot);
       return {
         readId: r.id,
         collectionId: r.collection_id,
+        number: numbers.get(r.id) ?? 1,
         kind: r.kind,
         status: r.status,
         readerId: r.reader_id,
@@ -109,6 +121,7 @@ export function morphologyJson(r: ReadMorphology) {
   const m = r.morphology;
   return {
     readId: r.readId,
+    number: r.number,
     kind: r.kind,
     status: r.status,
     readerId: r.readerId,

@@ -11,17 +11,16 @@
  * totals anything itself.
  */
 import type { Knex } from 'knex';
-import { collectionAgreement, pairCollection, type CollectionAgreement } from '@/lib/agreement/agreement';
-import { pairingDistancePx, type PairingMark } from '@/lib/agreement/pairing';
+import type { CollectionAgreement } from '@/lib/agreement/agreement';
 import { ApiError, conflict, notFound } from '@/lib/api/errors';
-import type { ClassSet } from '@/lib/class-sets/schema';
-import { morphologyClasses, morphologyOfRead, type Morphology } from '@/lib/morphology/engine';
+import { morphologyOfRead, type Morphology } from '@/lib/morphology/engine';
 import { countMarks } from '@/lib/morphology/tally';
 import { composeReportDraft, reportAgreementOf, signDraft, type Preparation, type Optics, type ReportContent } from '@/lib/reports/draft';
-import { readinessToSign, reportBasis, reportReads, type Readiness, type ReportBasis, type ReportRead } from '@/lib/reports/readiness';
+import { readinessToSign, reportBasis, type Readiness, type ReportBasis, type ReportRead } from '@/lib/reports/readiness';
 import type { ReportHealthEvent, ReportSnapshot } from '@/lib/reports/snapshot';
 import { newVerificationCode } from '@/lib/reports/verification';
-import { OPEN, SECOND_READ } from '@/lib/reads/kinds';
+import { blindingRead } from '@/lib/reads/policy';
+import { pairedReads, type PairingSettings, type ReportReadRow } from './agreement-core';
 import { mergeLabSettings, type LabSettings } from '@/lib/settings/lab-settings';
 import { flagCollections, spermatogenicWindow } from '@/lib/windows/window';
 import { HEALTH_EVENT_KIND_LABELS, describeHealthEvent, type HealthEventKind } from '@/lib/health/kinds';
@@ -51,41 +50,9 @@ async function audit(k: K, e: { userId: number; action: string; entity: string; 
 // ---------------------------------------------------------------------------
 // Reads
 
-export interface ReportReadRow extends ReportRead {
-  collectionId: number;
-  classSet: ClassSet;
-  targetCells: number;
-}
-
-export async function collectionReads(k: K, collectionId: number): Promise<ReportReadRow[]> {
-  const rows: Row[] = await k('reads as r')
-    .join('users as u', 'u.id', 'r.reader_id')
-    .where('r.collection_id', collectionId)
-    .orderBy('r.id')
-    .select('r.id', 'r.collection_id', 'r.kind', 'r.status', 'r.reader_id', 'r.target_cells', 'r.class_set_snapshot', 'u.name as reader_name');
-  return rows.map((r) => ({
-    id: r.id,
-    collectionId: r.collection_id,
-    kind: r.kind,
-    status: r.status,
-    readerId: r.reader_id,
-    readerName: r.reader_name,
-    targetCells: r.target_cells,
-    classSet: json<ClassSet>(r.class_set_snapshot),
-  }));
-}
-
-type MarkRow = { id: string; readId: number; imageId: string; x: number; y: number; classKey: string; tags: string[] };
-
-async function liveMarks(k: K, readIds: number[]): Promise<Map<number, MarkRow[]>> {
-  const out = new Map<number, MarkRow[]>(readIds.map((id) => [id, []]));
-  if (!readIds.length) return out;
-  const rows: Row[] = await k('marks').whereIn('read_id', readIds).where('deleted', false).orderBy('id').select('id', 'read_id', 'image_id', 'x', 'y', 'class_key', 'tags');
-  for (const r of rows) {
-    out.get(r.read_id)!.push({ id: r.id, readId: r.read_id, imageId: String(r.image_id), x: Number(r.x), y: Number(r.y), classKey: r.class_key, tags: json<string[]>(r.tags) });
-  }
-  return out;
-}
+// The read rows and the pairing live in db/queries/agreement-core.ts (shared with the agreement
+// route and the lists); re-exported here for the report code that imported them from this module.
+export { collectionReads, type ReportReadRow } from './agreement-core';
 
 /** Everything the report needs from the reads of a collection. */
 export interface ReadsForReport {
@@ -98,28 +65,12 @@ export interface ReadsForReport {
   people: { readBy: string | null; checkedBy: string | null; settledBy: string | null };
 }
 
-export async function readsForReport(k: K, collectionId: number, settings: Pick<LabSettings, 'secondReadRequired'>): Promise<ReadsForReport> {
-  const reads = await collectionReads(k, collectionId);
-  const { first, second, settled } = reportReads(reads);
-  const marks = await liveMarks(k, [...new Set([first, second, settled].filter((r): r is ReportReadRow => r !== null).map((r) => r.id))]);
-
-  let agreement: CollectionAgreement | null = null;
-  if (first && second) {
-    const images: Row[] = await k('field_images').where({ collection_id: collectionId }).orderBy('position').orderBy('id').select('id', 'microns_per_pixel');
-    const sperm = new Map(first.classSet.classes.map((c) => [c.key, c.countsAsSperm]));
-    const asPairing = (m: MarkRow): PairingMark & { imageId: string } => ({ id: m.id, x: m.x, y: m.y, classKey: m.classKey, countsAsSperm: sperm.get(m.classKey) ?? true, imageId: m.imageId });
-    const a = marks.get(first.id)!.map(asPairing);
-    const b = marks.get(second.id)!.map(asPairing);
-    const pairings = pairCollection(
-      images.map((im) => ({
-        imageId: String(im.id),
-        first: a.filter((m) => m.imageId === String(im.id)),
-        second: b.filter((m) => m.imageId === String(im.id)),
-        maxDistancePx: pairingDistancePx(im.microns_per_pixel == null ? null : Number(im.microns_per_pixel)),
-      })),
-    );
-    agreement = collectionAgreement(pairings, morphologyClasses(first.classSet));
-  }
+export async function readsForReport(
+  k: K,
+  collectionId: number,
+  settings: Pick<LabSettings, 'secondReadRequired'> & PairingSettings,
+): Promise<ReadsForReport> {
+  const { reads, first, second, settled, marks, agreement } = await pairedReads(k, collectionId, settings);
 
   const basis = reportBasis(reads, { secondReadRequired: settings.secondReadRequired, disagreements: agreement ? agreement.disagreements.length : null });
   const morphology = basis
@@ -258,15 +209,19 @@ export async function collectionReport(k: K, collectionId: number, opts: ReportI
     labName: settings.labName,
     secondReadRequired: settings.secondReadRequired,
     reads: reads.reads,
-    disagreements: reads.agreement ? reads.agreement.disagreements.length : null,
-    agreementComplete: reads.agreement ? reportAgreementOf(reads.agreement) !== null : null,
+    // Blind: not even how many disagreements the other reads have.
+    disagreements: reads.agreement && !opts.blind ? reads.agreement.disagreements.length : null,
+    agreementComplete: reads.agreement && !opts.blind ? reportAgreementOf(reads.agreement) !== null : null,
   });
   return { collectionId: c.id, stallionId: c.stallion_id, clientId: c.client_id, signedReportId: c.signed_report_id ?? null, draft, readiness, reads: reads.reads };
 }
 
-/** Whether `userId` reads the open second read of this collection (and is therefore blind to the other reads' figures). */
+/**
+ * Whether `userId` reads an open second read of this collection, and is therefore blind to the
+ * other reads' figures (lib/reads/policy.ts blindingRead, the one rule).
+ */
 export function isBlindTo(userId: number, reads: readonly ReportRead[]): boolean {
-  return reads.some((r) => r.kind === SECOND_READ && r.status === OPEN && r.readerId === userId);
+  return blindingRead({ id: userId }, reads) !== null;
 }
 
 // ---------------------------------------------------------------------------

@@ -18,11 +18,11 @@ import * as storage from '../../storage/s3-core';
 /*
  * Signed reports for the demo, so the owner's portal, the verification page and the
  * veterinarian's work lists have something to show after `npm start`:
- * - Thistlewick Lantern (the demo owner's stallion), 20 April: second read and settled read,
+ * - Thistlewick Lantern (the demo owner's stallion), 20 April (his nearest collection, 21 April): second read and settled read,
  *   signed; 10 June (inside the fever's window): signed, amended once with a reason and signed
  *   again, so version 1 is superseded by version 2; 28 July: a second read agreeing cell for cell,
  *   left unsigned for the veterinarian's "ready to sign" list.
- * - Marrowby Sextant (another owner's stallion), 20 May: field images, first, second and settled
+ * - Marrowby Sextant (another owner's stallion), 20 May (his nearest, 21 May): field images, first, second and settled
  *   reads, signed.
  * Reads are added only where missing (an earlier seed may have made second or settled reads), and
  * a collection that already has a signed version is left alone: re-runnable. Reports are signed

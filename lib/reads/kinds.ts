@@ -34,3 +34,14 @@ export interface ReadRef {
   status: ReadStatus;
   readerId: number;
 }
+
+/**
+ * A read's number: its place among its collection's reads in the order they were started (by
+ * id), from 1. Derived, never stored, so a read written by any code path is numbered the same.
+ */
+export function numberReads(reads: readonly Pick<ReadRef, 'id'>[]): Map<number, number> {
+  return new Map([...reads].sort((a, b) => a.id - b.id).map((r, i) => [r.id, i + 1]));
+}
+
+/** "Read 3 · Second read", the name a numbered read goes by on the pages. */
+export const readLabel = (r: { kind: ReadKind; number: number }): string => `Read ${r.number} · ${READ_KIND_LABELS[r.kind]}`;

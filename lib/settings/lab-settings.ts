@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { BREEDING_SOUNDNESS_PMMN_THRESHOLD_BILLION, DOSE_DEFAULTS, EJACULATE_PAIR_GAP_DEFAULT } from '@/lib/semen/arithmetic';
 import { DEFAULT_TARGET_CELLS } from '@/lib/morphology/tally';
 import { DEFAULT_TIME_ZONE, isTimeZone } from '@/lib/time/lab-time';
+import { PAIRING_DISTANCE_UM_DEFAULT } from '@/lib/agreement/pairing';
 import { EPIDIDYMAL_TRANSIT_DAYS_DEFAULT, SPERMATOGENESIS_DAYS_DEFAULT } from '@/lib/windows/window';
 
 const num = (label: string, min: number, max: number) =>
@@ -20,6 +21,11 @@ export const labSettingsSchema = z.object({
   spermatogenesisDays: int('Spermatogenesis', 30, 90),
   epididymalTransitDays: int('Epididymal transit', 0, 30),
   unscaledMicronsPerPixel: num('Pixel size for images without a scale', 0.01, 5),
+  /**
+   * How far apart two readers' marks may be and still be one cell, µm (converted with each image's
+   * scale; on an image without one, at the pixel size above). Defaults for older stored settings.
+   */
+  pairingDistanceUm: num('Pairing distance', 0.5, 20).default(PAIRING_DISTANCE_UM_DEFAULT),
   timeZone: z.string().trim().refine(isTimeZone, 'Unknown time zone — choose one from the list (e.g. Europe/London, America/New_York).'),
   /**
    * "Second read required before a report" (default on): a report is signed only from a settled
@@ -43,6 +49,7 @@ export const LAB_SETTINGS_DEFAULTS: LabSettings = {
   spermatogenesisDays: SPERMATOGENESIS_DAYS_DEFAULT,
   epididymalTransitDays: EPIDIDYMAL_TRANSIT_DAYS_DEFAULT,
   unscaledMicronsPerPixel: 0.25,
+  pairingDistanceUm: PAIRING_DISTANCE_UM_DEFAULT,
   timeZone: DEFAULT_TIME_ZONE,
   secondReadRequired: true,
   labName: '',
@@ -60,7 +67,8 @@ export const LAB_SETTINGS_FIELDS: { key: Exclude<keyof LabSettings, 'timeZone' |
   { key: 'targetCells', label: 'Target cells per collection', unit: 'cells', source: 'Common practice: 100–200 per sample for stallions' },
   { key: 'spermatogenesisDays', label: 'Spermatogenesis', unit: 'days', source: 'About 57 days (Swierstra, Gebauer & Pickett 1974, from memory)' },
   { key: 'epididymalTransitDays', label: 'Epididymal transit', unit: 'days', source: 'Gebauer, Pickett & Swierstra 1974: at least 4.9, on average 7.5–11 days' },
-  { key: 'unscaledMicronsPerPixel', label: 'Pixel size for finding cells on images without a scale', unit: 'µm per pixel', source: 'Fieldmark default; set your camera’s calibration (stage micrometer), or set each image’s scale, then re-run the search on those images' },
+  { key: 'unscaledMicronsPerPixel', label: 'Pixel size for images without a scale (finding cells, pairing two reads)', unit: 'µm per pixel', source: 'Fieldmark default; set your camera’s calibration (stage micrometer), or set each image’s scale, then re-run the search on those images' },
+  { key: 'pairingDistanceUm', label: 'Pairing distance: two readers’ marks this close are one cell', unit: 'µm', source: 'About half a stallion sperm head’s length, 4 µm (from memory); a change applies to agreement figures worked out after it' },
 ];
 
 /** Stored values win over defaults; unknown or invalid stored keys fall back to the default. */

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { FIRST_READ } from '@/lib/reads/kinds';
+import { FIRST_READ, SECOND_READ } from '@/lib/reads/kinds';
 
 const uuid = (what: string) => z.string().regex(/^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/i, `${what} must be a UUID v4 made by the browser.`);
 
@@ -31,4 +31,4 @@ export const readParams = z.object({ id: z.coerce.number().int().positive('Unkno
 export const markParams = readParams.extend({ markId: uuid('The mark id') });
 export const putMarkSchema = markPayloadSchema.omit({ id: true, version: true }).extend({ opId: uuid('The change id'), baseVersion: z.number().int().min(0).optional() });
 export const deleteMarkQuery = z.object({ opId: uuid('The change id'), baseVersion: z.coerce.number().int().min(0).optional() });
-export const startReadSchema = z.object({ kind: z.literal(FIRST_READ, 'Only first reads can be started here.') });
+export const startReadSchema = z.object({ kind: z.enum([FIRST_READ, SECOND_READ], 'Start a first or a second read here; a settled read is written by settling.') });

@@ -11,7 +11,10 @@ test('a technician’s dashboard: greeting by name, the season with its dates, t
   expect(Number((await collections.textContent())!.match(/^\d+/)![0])).toBeGreaterThan(0);
   await expect(page.getByRole('heading', { name: 'Waiting for a first read' })).toBeVisible();
   await expect(page.getByRole('heading', { name: 'Reads in progress' })).toBeVisible();
-  await expect(page.getByRole('heading', { name: 'Second reads and disagreements' })).toBeVisible();
+  await expect(page.getByRole('heading', { name: 'Waiting for a second read' })).toBeVisible();
+  // Never the technician's own first reads: every demo first read is hers.
+  await expect(page.getByRole('region', { name: 'Waiting for a second read' }).getByText(/first read by Tamsin Reedway/)).toHaveCount(0);
+  await expect(page.getByRole('heading', { name: 'Disagreements to settle' })).toBeVisible();
   await expect(page.getByRole('heading', { name: 'Users and settings' })).toHaveCount(0);
 });
 

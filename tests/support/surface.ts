@@ -82,6 +82,7 @@ export const GET_ROUTES: Entry[] = [
   { path: '/api/collections/[collection]/images', roles: STAFF },
   { path: '/api/collections/[collection]/morphology', roles: STAFF },
   { path: '/api/collections/[collection]/reads', roles: STAFF },
+  { path: '/api/collections/[collection]/agreement', roles: STAFF },
   { path: '/api/collections/[collection]/report', roles: STAFF },
   { path: '/api/reports', roles: SIGNED_IN },
   { path: '/api/reports/[report]', roles: STAFF_AND_OWNER },

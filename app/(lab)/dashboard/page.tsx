@@ -1,11 +1,12 @@
 import Link from 'next/link';
-import { collectionsAwaitingFirstRead, collectionsReadyToSign, fileCounts, readsInProgress, reportsAmendedNotResigned, seasonOverview, userOverview } from '@/db/queries/dashboard';
+import { collectionsAwaitingFirstRead, collectionsAwaitingSecondRead, collectionsReadyToSign, fileCounts, readsInProgress, reportsAmendedNotResigned, seasonOverview, userOverview } from '@/db/queries/dashboard';
 import { getLabSettings } from '@/db/queries/settings';
 import { countOf, fmtDate, fmtDateTime } from '@/lib/format';
 import { ROLE_LABELS, STAFF_ROLES } from '@/lib/auth/roles';
 import { requirePageUser } from '@/lib/auth/session';
 import { READ_KIND_LABELS } from '@/lib/reads/kinds';
 import { mayRead } from '@/lib/reads/policy';
+import { RecountFlag } from '@/components/reads/recount-flag';
 
 export const metadata = { title: 'Dashboard' };
 
@@ -36,15 +37,16 @@ function Upcoming({ id, title, children }: { id: string; title: string; children
 
 export default async function DashboardPage() {
   const user = await requirePageUser(STAFF_ROLES);
-  const { timeZone } = await getLabSettings();
+  const { timeZone, secondReadRequired } = await getLabSettings();
   const reader = mayRead(user.role);
   const manager = user.role === 'lab_manager';
   const vet = user.role === 'veterinarian';
-  const [season, files, waiting, inProgress, users, toSign, amended] = await Promise.all([
+  const [season, files, waiting, inProgress, waitingSecond, users, toSign, amended] = await Promise.all([
     seasonOverview(timeZone),
     fileCounts(),
     reader ? collectionsAwaitingFirstRead() : Promise.resolve([]),
     reader ? readsInProgress(user) : Promise.resolve([]),
+    reader ? collectionsAwaitingSecondRead(user) : Promise.resolve([]),
     manager ? userOverview() : Promise.resolve(null),
     vet ? collectionsReadyToSign() : Promise.resolve([]),
     vet ? reportsAmendedNotResigned() : Promise.resolve([]),
@@ -110,10 +112,31 @@ export default async function DashboardPage() {
       )}
 
       {reader && (
-        <Upcoming id="second-reads" title="Second reads and disagreements">
-          Collections waiting for a blind second read (never your own first reads) and disagreements to settle will be listed here once second
-          reads are part of Fieldmark.
-        </Upcoming>
+        <div className="grid gap-4 lg:grid-cols-2">
+          <section aria-labelledby="waiting-second" className="card">
+            <h2 id="waiting-second" className="mb-1">Waiting for a second read</h2>
+            <p className="mb-2 text-xs text-ink-faint">
+              {secondReadRequired
+                ? 'Blind second reads you may make (never your own first reads), and recounts where the two reads differ too much.'
+                : 'The lab does not require a second read before a report (Lab settings), so only recounts are listed; a second read can still be started from a collection’s page.'}
+            </p>
+            {waitingSecond.length === 0 ? (
+              <p className="text-sm text-ink-soft">No collection is waiting for a second read by you.</p>
+            ) : (
+              <ul className="divide-y divide-line text-sm">
+                {waitingSecond.map((c) => (
+                  <li key={c.id} className="flex flex-wrap justify-between gap-2 py-2">
+                    <Link href={`/collections/${c.id}`}>{c.stallion} · {fmtDateTime(c.collectedAt, timeZone)}</Link>
+                    <span className="text-ink-soft">{c.recount ? <RecountFlag compact /> : `first read by ${c.firstReader}`}</span>
+                  </li>
+                ))}
+              </ul>
+            )}
+          </section>
+          <Upcoming id="to-settle" title="Disagreements to settle">
+            Collections whose two reads disagree on some cells will be listed here once settling is part of Fieldmark.
+          </Upcoming>
+        </div>
       )}
       {vet && (
         <section aria-labelledby="to-sign" className="card space-y-3">

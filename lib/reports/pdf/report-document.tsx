@@ -260,7 +260,7 @@ export function ReportDocument({ snapshot: r, verifyUrl }: ReportDocumentProps) 
           {r.breedingSoundness?.role === 'second' && (
             <Text>
               Second of two ejaculates ({fmt(r.breedingSoundness.gapMinutes, 0)} min after the first, collected {when(r.breedingSoundness.firstCollectedAt)}): PMMN{' '}
-              <Billions key="v" value={r.breedingSoundness.pmmnBillion} /> against a threshold of <Billions key="v" value={r.breedingSoundness.thresholdBillion} /> —{' '}
+              <Billions key="pmmn" value={r.breedingSoundness.pmmnBillion} /> against a threshold of <Billions key="threshold" value={r.breedingSoundness.thresholdBillion} /> —{' '}
               <Text style={{ fontWeight: 700 }}>{BSE_STATUS_LABELS[r.breedingSoundness.status]}</Text>.
             </Text>
           )}

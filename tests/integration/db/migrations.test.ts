@@ -198,6 +198,27 @@ const STEPS: Record<string, { tables: string[]; write(): Promise<void>; check():
       }
     },
   },
+  '20261226000100_reads_numbered.ts': {
+    tables: [],
+    async write() {
+      // An unsigned collection (the earlier one is locked by its signed report) with one second read.
+      [ids.collection2] = await db('collections').insert({ stallion_id: ids.stallion, collected_at: new Date('2026-05-03T09:00:00Z'), volume_ml: 40, recorded_by: ids.user });
+      [ids.secondRead] = await db('reads').insert({ collection_id: ids.collection2, kind: 'second', reader_id: ids.user, class_set_id: ids.set, class_set_snapshot: JSON.stringify(snapshot), target_cells: 200 });
+    },
+    async check() {
+      expect(await db('reads').where({ id: ids.secondRead }).first('collection_id', 'kind')).toEqual({ collection_id: ids.collection2, kind: 'second' });
+      // A further read of the same kind (a recount) is accepted now; rolled back so the step down can restore the old index.
+      const trx = await db.transaction();
+      try {
+        await trx('reads').insert({ collection_id: ids.collection2, kind: 'second', reader_id: ids.user, class_set_id: ids.set, class_set_snapshot: JSON.stringify(snapshot), target_cells: 200 });
+        expect(await trx('reads').where({ collection_id: ids.collection2, kind: 'second' }).count({ n: '*' }).first()).toEqual({ n: 2 });
+      } finally {
+        await trx.rollback();
+      }
+      const [indexes] = await db.raw('SHOW INDEX FROM `reads`');
+      expect((indexes as { Key_name: string }[]).map((i) => i.Key_name)).toContain('reads_collection_id_index');
+    },
+  },
 };
 
 describe('migrations', () => {

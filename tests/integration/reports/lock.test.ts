@@ -50,9 +50,11 @@ describe('a signed collection', () => {
         const res = await tech.fetch(`/api/collections/${c.collectionId}/images?name=late.jpg`, { method: 'POST', headers: { 'content-type': 'application/octet-stream' }, body: new Uint8Array(body) });
         return { status: res.status, body: await res.json() };
       }, 'signed_report'],
-      ['change an image’s scale', () => tech.json(`/api/images/${markedImage}`, 'PATCH', { micronsPerPixel: 0.3 }), 'signed_report'],
+      ['change an image’s scale', () => tech.json(`/api/images/${unmarkedImage}`, 'PATCH', { micronsPerPixel: 0.3 }), 'signed_report'],
+      // An image with marks keeps its scale whatever the lock (the pairing measures with it): refused first.
+      ['change a marked image’s scale', () => tech.json(`/api/images/${markedImage}`, 'PATCH', { micronsPerPixel: 0.3 }), 'scale_locked'],
       ['move an image', () => tech.json(`/api/images/${unmarkedImage}`, 'PATCH', { move: 'up' }), 'signed_report'],
-      ['set the collection’s scale', () => tech.json(`/api/collections/${c.collectionId}/images`, 'PATCH', { micronsPerPixel: 0.3 }), 'signed_report'],
+      ['set the collection’s scale', () => tech.json(`/api/collections/${c.collectionId}/images`, 'PATCH', { micronsPerPixel: 0.3 }), 'scale_locked'],
       ['delete an image without marks', () => tech.json(`/api/images/${unmarkedImage}`, 'DELETE'), 'signed_report'],
       ['delete an image with marks', () => tech.json(`/api/images/${markedImage}`, 'DELETE'), 'conflict'],
       ['save marks (sync)', () => tech.json(`/api/reads/${c.reads.first}/sync`, 'POST', { changes: [change()] }), 'conflict'],
@@ -74,6 +76,8 @@ describe('a signed collection', () => {
     expect(answers).toHaveLength(writes.length);
     // Starting a read of a signed collection hands back the existing first read: nothing is written.
     expect((await tech.json(`/api/collections/${c.collectionId}/reads`, 'POST', { kind: 'first' })).body.read.id).toBe(c.reads.first);
+    // A further second read of a signed (and settled) collection is refused.
+    expect((await vet.json(`/api/collections/${c.collectionId}/reads`, 'POST', { kind: 'second' })).status).toBe(409);
 
     expect(await db('collections').where({ id: c.collectionId }).first()).toEqual(before.collection);
     expect(await db('field_images').where({ collection_id: c.collectionId }).orderBy('id')).toEqual(before.images);

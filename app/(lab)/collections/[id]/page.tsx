@@ -2,6 +2,10 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { collectionsAround, getCollection } from '@/db/queries/collections';
 import { morphologyForCollection } from '@/db/queries/morphology';
+import { agreementOrNull } from '@/db/queries/agreement';
+import { listReads } from '@/db/queries/reads';
+import { AgreementFigures } from '@/components/reads/agreement-figures';
+import { RecountFlag } from '@/components/reads/recount-flag';
 import { collectionReportState } from '@/db/queries/reports';
 import { getLabSettings } from '@/db/queries/settings';
 import { MorphologySummary } from '@/components/reads/morphology-summary';
@@ -11,7 +15,8 @@ import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { FieldImages } from '@/components/images/gallery';
 import { WindowFlag } from '@/components/history/window-flag';
 import { requirePageUser } from '@/lib/auth/session';
-import { READ_KIND_LABELS } from '@/lib/reads/kinds';
+import { OPEN, READ_KIND_LABELS, SECOND_READ, readLabel } from '@/lib/reads/kinds';
+import type { ReadAction } from '@/lib/reads/policy';
 import { figuresBasis, readActionsFor } from '@/lib/reads/policy';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
 import { soundnessForCollection, summariseCollection } from '@/lib/semen/summary';
@@ -27,17 +32,33 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
   if (!/^\d+$/.test(id)) notFound();
   const c = await nullIfNotFound(getCollection(user, Number(id)));
   if (!c) notFound();
-  const [settings, around, reads, report] = await Promise.all([
+  const [settings, around, reads, allReads, agreement, report] = await Promise.all([
     getLabSettings(),
     collectionsAround(c.stallionId, new Date(c.collectedAt)),
     morphologyForCollection(user, c.id),
+    listReads(user, c.id),
+    agreementOrNull(user, c.id),
     collectionReportState(c.id),
   ]);
   // While a signed report locks the collection, the database refuses every change; the page offers none.
   const locked = report.state === 'signed';
   const basis = figuresBasis(reads);
   const normalPct = basis?.read.morphology.pctNormal ?? null;
-  const actions = locked ? [] : readActionsFor(user, reads.map((r) => ({ id: r.readId, kind: r.kind, status: r.status, readerId: r.readerId })));
+  // Every read, seen or not, decides what may start (an open second read hidden from this user still blocks another).
+  const actions = locked ? [] : readActionsFor(user, allReads, { recountAdvised: agreement?.recountAdvised ?? false });
+  const hidden = allReads.filter((r) => !r.visible);
+  const blind = allReads.some((r) => r.kind === SECOND_READ && r.status === OPEN && r.readerId === user.id);
+  const classNames = new Map(reads.flatMap((r) => r.morphology.cells.perClass.map((p) => [p.classId, p.name] as const)));
+  const basisLabel =
+    basis?.basis === 'settled'
+      ? 'settled read'
+      : !agreement
+        ? 'first read (not yet checked by a second reader)'
+        : agreement.disagreements === 0
+          ? 'first read (the second read agrees with it cell for cell)'
+          : `first read (checked by a second reader; ${agreement.disagreements} disagreement${agreement.disagreements === 1 ? '' : 's'} not settled yet)`;
+  const actionLabel = (a: ReadAction) =>
+    a.action === 'continue' ? `Continue ${READ_KIND_LABELS[a.kind].toLowerCase()}` : a.kind === SECOND_READ && a.recount ? 'Start a recount (further second read)' : `Start ${READ_KIND_LABELS[a.kind].toLowerCase()}`;
   const s = summariseCollection(c, settings, normalPct);
   const bse = soundnessForCollection(
     c.id,
@@ -119,7 +140,7 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
                   <>
                     {billions(s.totals.pmmnBillion)}
                     <span className="block text-xs text-ink-faint">
-                      at {fmt(normalPct)} % normal from the {basis?.basis === 'settled' ? 'settled read' : 'first read (not yet checked by a second reader)'}
+                      at {fmt(normalPct)} % normal from the {basisLabel}
                     </span>
                   </>
                 )}
@@ -156,11 +177,31 @@ export default async function CollectionPage({ params }: { params: Promise<{ id:
       <section aria-labelledby="morph-heading" className="space-y-3">
         <div className="flex flex-wrap items-center justify-between gap-3">
           <h2 id="morph-heading">Morphology</h2>
-          {actions.map((a) => (
-            <StartReadButton key={a.kind} collectionId={c.id} kind={a.kind} label={`${a.action === 'start' ? 'Start' : 'Continue'} ${READ_KIND_LABELS[a.kind].toLowerCase()}`} />
-          ))}
+          {actions.map((a) =>
+            a.action === 'continue' ? (
+              <Link key={a.readId} href={`/reads/${a.readId}`} className="btn no-underline hover:no-underline">{actionLabel(a)}</Link>
+            ) : (
+              <StartReadButton key={a.kind} collectionId={c.id} kind={a.kind} label={actionLabel(a)} />
+            ),
+          )}
         </div>
+        {blind && (
+          <p role="note" className="rounded-md bg-brand-light px-4 py-3 text-sm">
+            Your second read of this collection is blind: the other reads’ marks and figures stay hidden until you submit it.
+          </p>
+        )}
+        {agreement?.recountAdvised && (
+          <RecountFlag detail={agreement.acceptableDifference ? `(${fmt(agreement.percentNormal.first)} % against ${fmt(agreement.percentNormal.second)} %: ${fmt(agreement.acceptableDifference.difference)} points apart, limit ${fmt(agreement.acceptableDifference.limit)}.)` : undefined} />
+        )}
         <MorphologySummary reads={reads} />
+        {!blind && hidden.length > 0 && (
+          <ul aria-label="Reads not shown" className="space-y-1 text-sm text-ink-soft">
+            {hidden.map((r) => (
+              <li key={r.id}>{readLabel(r)} by {r.readerName} is in progress; it is blind, and its figures appear once it is submitted.</li>
+            ))}
+          </ul>
+        )}
+        {agreement && <AgreementFigures a={agreement} names={classNames} />}
       </section>
 
       <section aria-labelledby="images-heading" className="space-y-3">

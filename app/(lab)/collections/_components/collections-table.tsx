@@ -6,6 +6,7 @@ import { useLabTimeZone } from '@/components/time/lab-clock';
 import { ExportLinks } from '@/components/history/export-links';
 import { WindowFlag } from '@/components/history/window-flag';
 import { DataTable } from '@/components/ui/data-table';
+import { RecountFlag } from '@/components/reads/recount-flag';
 import type { Collection } from '@/db/queries/collections';
 import { billions, fmt, fmtDateTime } from '@/lib/format';
 import { OPEN } from '@/lib/reads/kinds';
@@ -29,7 +30,14 @@ const columnsFor = (timeZone: string) => [
     enableSorting: false,
     cell: (i) => {
       const f = i.getValue();
-      return f ? `${f.cells} cells · ${f.pctNormal == null ? '—' : `${fmt(f.pctNormal)} % normal`}${f.status === OPEN ? ' (in progress)' : ''}` : '—';
+      const text = f ? `${f.cells} cells · ${f.pctNormal == null ? '—' : `${fmt(f.pctNormal)} % normal`}${f.status === OPEN ? ' (in progress)' : ''}` : '—';
+      return i.row.original.recountAdvised ? (
+        <span>
+          {text} <RecountFlag compact />
+        </span>
+      ) : (
+        text
+      );
     },
   }),
   c.accessor('daysSincePrevious', { id: 'daysSincePrevious', header: 'Days since previous', enableSorting: false, cell: (i) => fmt(i.getValue()) }),

@@ -1,32 +1,66 @@
 'use client';
 
 import { createColumnHelper } from '@tanstack/react-table';
-import { useMemo, useState } from 'react';
+import { useMemo, useState, type ReactNode } from 'react';
 import { useLabTimeZone } from '@/components/time/lab-clock';
 import { DataTable } from '@/components/ui/data-table';
 import type { AuditRow } from '@/db/queries/audit-log';
 import { fmtDateTime } from '@/lib/format';
 
 const show = (v: unknown) => (v === undefined ? '—' : typeof v === 'string' ? v : JSON.stringify(v));
+/** A value cut to a line's worth; the whole value is in the row's "whole record" details. */
+const brief = (v: unknown) => {
+  const t = show(v);
+  return t.length > 48 ? `${t.slice(0, 47)}…` : t;
+};
+const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+/** One record as it was stored (a creation or a removal): its fields with values, long ones cut. */
+function RecordFields({ label, value }: { label: string; value: unknown }) {
+  if (!isRecord(value)) return <p className="break-all"><span className="font-medium">{label}</span> {show(value)}</p>;
+  const keys = Object.keys(value).filter((k) => value[k] !== null && value[k] !== '');
+  return (
+    <div>
+      <p className="font-medium">{label}</p>
+      <ul className="space-y-0.5">
+        {keys.map((k) => (
+          <li key={k} className="break-all"><span className="text-ink-soft">{k}</span>: {brief(value[k])}</li>
+        ))}
+      </ul>
+    </div>
+  );
+}
 
 /** Before and after, field by field: only what changed when both are records, else each as it was stored. */
 function Changes({ before, after }: { before: unknown; after: unknown }) {
-  const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+  let body: ReactNode;
   if (isRecord(before) && isRecord(after)) {
     const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])].filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
-    if (keys.length === 0) return <span className="text-ink-faint">no field changed</span>;
-    return (
+    body = keys.length === 0 ? <span className="text-ink-faint">no field changed</span> : (
       <ul className="space-y-0.5">
         {keys.map((k) => (
-          <li key={k} className="break-all"><span className="font-medium">{k}</span>: {show(before[k])} → {show(after[k])}</li>
+          <li key={k} className="break-all"><span className="font-medium">{k}</span>: {brief(before[k])} → {brief(after[k])}</li>
         ))}
       </ul>
     );
+  } else {
+    body = (
+      <div className="space-y-1">
+        {before != null && <RecordFields label="before" value={before} />}
+        {after != null && <RecordFields label="after" value={after} />}
+      </div>
+    );
   }
+  const whole = JSON.stringify({ before, after }, null, 1);
   return (
-    <div className="space-y-0.5 break-all">
-      {before != null && <p><span className="font-medium">before</span> {show(before)}</p>}
-      {after != null && <p><span className="font-medium">after</span> {show(after)}</p>}
+    <div className="space-y-1">
+      {body}
+      {whole.length > 120 && (
+        <details>
+          <summary className="cursor-pointer text-ink-soft">whole record</summary>
+          <pre className="whitespace-pre-wrap break-all">{whole}</pre>
+        </details>
+      )}
     </div>
   );
 }

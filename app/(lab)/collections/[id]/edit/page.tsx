@@ -14,7 +14,7 @@ export default async function EditCollectionPage({ params }: { params: Promise<{
   if (!/^\d+$/.test(id)) notFound();
   const [c, stallions] = await Promise.all([nullIfNotFound(getCollection(user, Number(id))), stallionOptions()]);
   if (!c) notFound();
-  const { id: _id, stallion, recordedBy, daysSincePrevious, numberThatDay, firstRead, collectedAt, ...values } = c;
+  const { id: _id, stallion, recordedBy, daysSincePrevious, numberThatDay, firstRead, recountAdvised, collectedAt, ...values } = c;
   return (
     <div className="space-y-4">
       <h1>Edit collection of {stallion}</h1>

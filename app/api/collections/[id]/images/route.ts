@@ -5,9 +5,9 @@ import { READER_ROLES, STAFF_ROLES } from '@/lib/auth/roles';
 import { idParams } from '@/lib/validations/common';
 import { collectionScaleSchema, uploadQuery } from '@/lib/validations/image';
 
-export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ params }) => {
+export const GET = route({ roles: STAFF_ROLES, params: idParams }, async ({ user, params }) => {
   await requireRecord('collections', params.id);
-  return { images: await listImages(params.id) };
+  return { images: await listImages(user, params.id) };
 });
 
 /** One file per request, sent as the raw body (streamed to disk, never held whole in memory). */
