@@ -114,9 +114,13 @@ mail_start() {
 
 status_line() { if eval "$2"; then say "$1: up"; else say "$1: down"; fi; }
 
+# `start db`, `stop s3` …: one service alone (the fault tests stop one and start it again).
+svc="${2:-all}"
+case "$svc" in all | db | s3 | mail) ;; *) die "usage: services.sh start|stop [db|s3|mail]" ;; esac
+want() { [ "$svc" = all ] || [ "$svc" = "$1" ]; }
 case "$cmd" in
-  start) db_start; s3_start; mail_start ;;
-  stop) node_stop mail-sink "$RUN_DIR/mail.pid"; node_stop s3-fake "$RUN_DIR/s3.pid"; db_stop ;;
+  start) want db && db_start; want s3 && s3_start; want mail && mail_start; true ;;
+  stop) want mail && node_stop mail-sink "$RUN_DIR/mail.pid"; want s3 && node_stop s3-fake "$RUN_DIR/s3.pid"; want db && db_stop; true ;;
   status)
     status_line "MariaDB 127.0.0.1:$DB_PORT" db_ping
     status_line "S3 fake 127.0.0.1:$S3_PORT" "port_open $S3_PORT"

@@ -1,4 +1,5 @@
 import 'server-only';
+import { requireRecord } from '@/db/queries/records';
 import { createWriteStream } from 'node:fs';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
@@ -165,7 +166,7 @@ export async function uploadImage(
   body: ReadableStream<Uint8Array> | null,
   meta: Omit<StoreImageInput, 'collectionId' | 'filePath' | 'uploadedBy'>,
 ): Promise<{ image: FieldImage; duplicate: boolean }> {
-  if (!(await db('collections').where({ id: collectionId }).first('id'))) throw notFound('The collection');
+  await requireRecord('collections', collectionId);
   const tmp = await bodyToTempFile(body, UPLOAD_LIMITS.maxBytes, meta.fileName);
   try {
     const r = await storeFieldImage(db, storage, { ...meta, collectionId, filePath: tmp.path, uploadedBy: actor.id }, UPLOAD_LIMITS);
@@ -212,6 +213,7 @@ export async function updateImage(actor: CurrentUser, id: number, change: { move
 
 export async function setCollectionScale(actor: CurrentUser, collectionId: number, micronsPerPixel: number): Promise<number> {
   return db.transaction(async (trx) => {
+    await requireRecord('collections', collectionId, trx);
     const images: Row[] = await trx('field_images').where({ collection_id: collectionId }).forUpdate().select('id', 'file_name', 'microns_per_pixel');
     await refuseRescaleOfMarked(trx, images, micronsPerPixel);
     const n = await trx('field_images').where({ collection_id: collectionId }).update({ microns_per_pixel: micronsPerPixel });

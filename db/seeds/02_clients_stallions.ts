@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import { DEMO_CLIENTS, DEMO_CLIENT_USER_EMAIL, DEMO_STALLIONS } from '../../lib/demo/scenario';
+import { DEMO_CLIENTS, DEMO_CLIENT_USER_EMAIL, DEMO_OTHER_CLIENT_USER_EMAIL, DEMO_STALLIONS } from '../../lib/demo/scenario';
 
 // Re-runnable: clients are matched by name, stallions by registration; only missing rows are
 // inserted and existing ones are left as they are (someone may have edited them in the demo).
@@ -23,14 +23,13 @@ export async function seed(knex: Knex): Promise<void> {
       clientIds.set(c.name, id);
     }
 
-    // The client user sees the stallions of the client with the same e-mail; never overwrite a
+    // Each client user sees the stallions of the client with the same e-mail; never overwrite a
     // link someone has changed.
-    const portalClient = DEMO_CLIENTS.find((c) => c.email === DEMO_CLIENT_USER_EMAIL);
-    if (!portalClient) throw new Error(`no demo client with e-mail ${DEMO_CLIENT_USER_EMAIL}`);
-    await trx('users')
-      .where({ email: DEMO_CLIENT_USER_EMAIL })
-      .whereNull('client_id')
-      .update({ client_id: clientIds.get(portalClient.name) });
+    for (const email of [DEMO_CLIENT_USER_EMAIL, DEMO_OTHER_CLIENT_USER_EMAIL]) {
+      const portalClient = DEMO_CLIENTS.find((c) => c.email === email);
+      if (!portalClient) throw new Error(`no demo client with e-mail ${email}`);
+      await trx('users').where({ email }).whereNull('client_id').update({ client_id: clientIds.get(portalClient.name) });
+    }
 
     for (const s of DEMO_STALLIONS) {
       const existing = await trx('stallions').where({ registration: s.registration }).first('id');

@@ -20,6 +20,9 @@ type Options<P extends Schema | undefined, Q extends Schema | undefined, B exten
   body?: B;
 };
 
+/** What a wrapped handler checks, kept on it as `spec`: the role matrix and the bad-input corpus read it (tests/support/routes.ts). */
+export type RouteSpec = { roles: readonly Role[]; params?: Schema; query?: Schema; body?: Schema };
+
 export function zodIssues(error: z.ZodError): ApiIssue[] {
   return error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
 }
@@ -99,7 +102,7 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
   opts: Options<P, Q, B>,
   handler: (ctx: RouteContext<Infer<P>, Infer<Q>, Infer<B>>) => Promise<unknown>,
 ) {
-  return async (req: NextRequest, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
+  const handle = async (req: NextRequest, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
     try {
       refuseCrossSite(req);
       const user = await getRequestUser(req);
@@ -120,4 +123,6 @@ export function route<P extends Schema | undefined = undefined, Q extends Schema
       return errorResponse(new ApiError(500, 'server_error', 'Something went wrong on the server; nothing was changed. Try again, and tell the lab manager if it persists.'));
     }
   };
+  const spec: RouteSpec = { roles: opts.roles, params: opts.params, query: opts.query, body: opts.body };
+  return Object.assign(handle, { spec });
 }

@@ -22,6 +22,8 @@ export const DEMO_RECORDERS = Object.freeze({
 
 /** The client user whose users row is linked to the client of the same e-mail. */
 export const DEMO_CLIENT_USER_EMAIL = 'owner@quillfield.example';
+/** A second client user, another owner (of Marrowby Sextant): sees none of the first one's stallions. */
+export const DEMO_OTHER_CLIENT_USER_EMAIL = 'bryony@fenwarde.example';
 
 // ---------------------------------------------------------------------------
 // Random numbers
@@ -79,7 +81,7 @@ export const DEMO_CLIENTS: readonly DemoClient[] = Object.freeze([
   {
     name: 'Bryony Fenwarde',
     kind: 'owner',
-    email: 'bryony@fenwarde.example',
+    email: DEMO_OTHER_CLIENT_USER_EMAIL,
     phone: '01632 960733',
     address: 'Fenwarde House, Marrowby Road, Quillfield',
     notes: null,

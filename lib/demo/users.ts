@@ -9,4 +9,5 @@ export const DEMO_USERS: { email: string; name: string; role: Role; note: string
   { email: 'vet@quillfield.example', name: 'Dr Maren Kettleby', role: 'veterinarian', note: 'sign-off' },
   { email: 'manager@quillfield.example', name: 'Ilse Brackenridge', role: 'lab_manager', note: 'users and settings' },
   { email: 'owner@quillfield.example', name: 'Corwen Ashdale', role: 'client', note: 'stallion owner' },
+  { email: 'bryony@fenwarde.example', name: 'Bryony Fenwarde', role: 'client', note: 'another stallion owner' },
 ];

@@ -11,7 +11,7 @@ import { signIn, USERS } from './support/auth';
 // One test per role, spread over the workers.
 test.describe.configure({ mode: 'parallel' });
 
-const EMAIL: Record<Exclude<Visitor, 'anonymous'>, string> = { technician: USERS.tech, veterinarian: USERS.vet, lab_manager: USERS.manager, client: USERS.owner };
+const EMAIL: Record<Exclude<Visitor, 'anonymous'>, string> = { technician: USERS.tech, veterinarian: USERS.vet, lab_manager: USERS.manager, client: USERS.owner, other_client: USERS.otherOwner };
 let ids: DemoIds;
 
 test.beforeAll(async () => {
@@ -47,7 +47,7 @@ async function open(page: Page, path: string, problems: string[]) {
 }
 
 for (const role of Object.keys(EMAIL) as (keyof typeof EMAIL)[]) {
-  test(`every page a ${role.replace('_', ' ')} can reach opens cleanly`, async ({ page }) => {
+  test(`every page ${role === 'other_client' ? 'a client of another owner' : `a ${role.replace('_', ' ')}`} can reach opens cleanly`, async ({ page }) => {
     test.setTimeout(180_000);
     const problems = watch(page);
     await signIn(page, EMAIL[role]);

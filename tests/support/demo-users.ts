@@ -8,4 +8,5 @@ export const USERS = {
   vet: 'vet@quillfield.example',
   manager: 'manager@quillfield.example',
   owner: 'owner@quillfield.example',
+  otherOwner: 'bryony@fenwarde.example',
 };

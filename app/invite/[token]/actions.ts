@@ -6,8 +6,9 @@ import { acceptInvitationSchema } from '@/lib/validations/auth';
 
 export type AcceptState = { ok?: boolean; email?: string; message?: string; fieldErrors?: Record<string, string> };
 
-export async function acceptInvitationAction(_prev: AcceptState, form: FormData): Promise<AcceptState> {
-  const parsed = acceptInvitationSchema.safeParse(Object.fromEntries(form));
+export async function acceptInvitationAction(_prev: AcceptState, form: unknown): Promise<AcceptState> {
+  // A hand-made call may send anything for the form: only a FormData is read as one, the rest goes to the schema as it is.
+  const parsed = acceptInvitationSchema.safeParse(form instanceof FormData ? Object.fromEntries(form) : form);
   if (!parsed.success) {
     const fieldErrors: Record<string, string> = {};
     for (const i of parsed.error.issues) fieldErrors[i.path.join('.')] ??= i.message;

@@ -27,3 +27,15 @@ export async function putObject(key: string, body: Buffer): Promise<void> {
 export async function removeObject(key: string): Promise<void> {
   await client.send(new DeleteObjectCommand({ Bucket: process.env.S3_BUCKET ?? 'fieldmark', Key: key }));
 }
+
+/** Every object in the bucket as `key size etag`, sorted, through every page of the listing. */
+export async function objectList(): Promise<string[]> {
+  const out: string[] = [];
+  let token: string | undefined;
+  do {
+    const r = await client.send(new ListObjectsV2Command({ Bucket: process.env.S3_BUCKET ?? 'fieldmark', ContinuationToken: token }));
+    for (const o of r.Contents ?? []) out.push(`${o.Key} ${o.Size} ${o.ETag}`);
+    token = r.IsTruncated ? r.NextContinuationToken : undefined;
+  } while (token);
+  return out.sort();
+}
