@@ -161,6 +161,12 @@ export const WRITE_ROUTES: WriteEntry[] = [
   { method: 'POST', path: '/api/collections/[collection]/images', roles: READERS, exampleQuery: { name: 'field-01.png', micronsPerPixel: '0.1', magnification: '1000', optics: 'bright_field' } },
   { method: 'PATCH', path: '/api/collections/[collection]/images', roles: READERS, example: { micronsPerPixel: 0.1 } },
   { method: 'POST', path: '/api/collections/[collection]/reads', roles: READERS, example: { kind: 'first' } },
+  {
+    method: 'POST',
+    path: '/api/collections/[collection]/settle',
+    roles: READERS,
+    example: (c: ExampleContext) => ({ decisions: [{ opId: UUID_B, key: `${c.ids.image}:${UUID_A}:`, decision: 'first' }] }),
+  },
   { method: 'PUT', path: '/api/collections/[collection]/report', roles: ['veterinarian'], example: { remarks: 'corpus', interpretation: 'corpus' } },
   { method: 'POST', path: '/api/collections/[collection]/report/sign', roles: ['veterinarian'], example: { password: 'not-the-password', remarks: 'corpus' }, noValidBodies: 'a wrong password counts against the veterinarian’s sign-in limit' },
   { method: 'PATCH', path: '/api/images/[image]', roles: READERS, example: { move: 'down', micronsPerPixel: 0.1 } },
