@@ -11,7 +11,10 @@ const COLOURS = { bias: '#0072B2', over: '#D55E00', kappa: '#1c2430' };
 export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoint[]; timeZone: string }) {
   const rows = points.map((p) => ({ ...p, label: new Date(p.collectedAt).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', timeZone }) }));
   // Symmetric about 0, so the sign of the bias reads at a glance (a single collection's bar included).
-  const reach = Math.max(1, Math.ceil(Math.max(...rows.map((r) => Math.abs(r.bias ?? 0)))));
+  // A round reach (1, 2, 5, 10, 20, … points) and ticks at its halves, so the axis reads in whole steps.
+  const most = Math.max(0, ...rows.map((r) => Math.abs(r.bias ?? 0)));
+  const reach = [1, 2, 5, 10, 20, 50, 100].find((n) => n >= most) ?? 100;
+  const ticks = [-reach, -reach / 2, 0, reach / 2, reach];
   if (!rows.length) return <p className="py-6 text-center text-sm text-ink-soft">Not compared with another reader in this period.</p>;
   return (
     <div className="h-48">
@@ -19,7 +22,7 @@ export function ReaderChart({ points, timeZone }: { points: ReaderCollectionPoin
         <ComposedChart data={rows} margin={{ top: 8, right: 8, bottom: 0, left: -12 }}>
           <CartesianGrid stroke="#d6dad3" strokeDasharray="3 3" />
           <XAxis dataKey="label" tick={{ fontSize: 11 }} />
-          <YAxis yAxisId="bias" domain={[-reach, reach]} allowDecimals={false} tick={{ fontSize: 11 }} unit=" pt" />
+          <YAxis yAxisId="bias" domain={[-reach, reach]} ticks={ticks} tick={{ fontSize: 11 }} unit=" pt" />
           <YAxis yAxisId="kappa" orientation="right" domain={[(low: number) => Math.min(0, Math.floor(low * 4) / 4), 1]} tick={{ fontSize: 11 }} />
           <ReferenceLine yAxisId="bias" y={0} stroke="#475467" />
           <Tooltip
