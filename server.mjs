@@ -22,6 +22,11 @@ const server = createServer((req, res) => {
   req.headers[PEER_HEADER] = req.socket.remoteAddress ?? '';
   handle(req, res);
 });
+// Idle keep-alive connections stay open longer than a load balancer's usual idle timeout (60 s),
+// so the balancer, not the app, closes them: a client never sends on a socket the app is closing
+// that moment (Node's default of 5 s makes that race common; common practice behind balancers).
+server.keepAliveTimeout = 65_000;
+server.headersTimeout = 66_000;
 if (dev) server.on('upgrade', app.getUpgradeHandler());
 server.listen(port, hostname, () => console.log(`[fieldmark] serving on http://${hostname}:${port} (${dev ? 'development' : 'production'})`));
 

@@ -25,7 +25,7 @@ test('the second reader’s dashboard lists the demo’s unsettled disagreements
   // Seed 07b: Copperline Drifter's collection nearest 24 June (25 June), second-read by this reader, its disagreements undecided.
   const link = list.getByRole('link', { name: /Copperline Drifter · 25 Jun 2026/ });
   await expect(link).toHaveAttribute('href', /^\/collections\/\d+\/settle$/);
-  await expect(list.getByRole('listitem').filter({ has: link })).toContainText(/0 of \d+ settled · second read by Orrin Halvard/);
+  await expect(list.getByRole('listitem').filter({ hasText: /Copperline Drifter · 25 Jun 2026/ })).toContainText(/0 of \d+ settled · second read by Orrin Halvard/);
 });
 
 test('a veterinarian is greeted by the name as written and has a place for reports to sign', async ({ page }) => {
