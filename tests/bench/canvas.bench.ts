@@ -22,7 +22,7 @@ import { fileURLToPath } from 'node:url';
 import { chromium } from '@playwright/test';
 import { build } from 'esbuild';
 import { generateField } from '@/lib/synthetic/generate-field';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
@@ -152,6 +152,10 @@ async function main() {
     const panP95 = q(ours.pan, 0.95);
     console.log(`\np95 repaint < ${TARGET_MS} ms: ${placeP95 < TARGET_MS ? 'PASS' : 'FAIL'} (place + repaint p95 ${f(placeP95)} ms)`);
     console.log(`p95 pan frame < ${TARGET_MS} ms: ${panP95 < TARGET_MS ? 'PASS' : 'FAIL'} (pan step + draw p95 ${f(panP95)} ms)`);
+    emitFigures('canvas', [
+      { name: `canvas place + repaint, ${MARKS} marks, p95`, unit: 'ms', value: placeP95, baseline: { name: '0 marks', value: q(empty.place, 0.95) }, better: 'lower', target: { on: 'value', max: TARGET_MS }, details: { p50_ms: q(ours.place, 0.5), plain_konva_p95_ms: q(plain.place, 0.95) } },
+      { name: `canvas pan step + draw, ${MARKS} marks, p95`, unit: 'ms', value: panP95, baseline: { name: '0 marks', value: q(empty.pan, 0.95) }, better: 'lower', target: { on: 'value', max: TARGET_MS }, details: { p50_ms: q(ours.pan, 0.5), plain_konva_p95_ms: q(plain.pan, 0.95) } },
+    ]);
   } finally {
     await browser.close();
     server.close();

@@ -25,7 +25,7 @@ import sharp from 'sharp';
 import { detectCandidates } from '@/lib/candidates/detect';
 import { loadOpenCv } from '@/lib/candidates/opencv';
 import { generateField, type FieldFormat } from '@/lib/synthetic/generate-field';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const TARGET = 3;
 const MICRONS_PER_PIXEL = 0.25;
@@ -153,6 +153,9 @@ async function main(): Promise<void> {
     lines.push(`Idle child with sharp and OpenCV loaded: ${mb(idle)} MB peak RSS.`);
     lines.push(`detection p50 ≤ ${TARGET} × sharp decode p50 (every group): ${pass ? 'PASS' : 'FAIL'}`);
     console.log(lines.join('\n'));
+    emitFigures('detect', [
+      { name: 'candidate detection, p50 per 12-MP image', unit: 'ms', value: quantile(times.detection.all, 0.5), baseline: { name: 'sharp decode', value: quantile(times['sharp decode'].all, 0.5) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details: { p95_ms: quantile(times.detection.all, 0.95), peak_rss_mb: peaks.detection / 2 ** 20 } },
+    ]);
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
