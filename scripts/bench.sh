@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# npm run bench [-- --only name,name] [-- --runs N] [-- --fresh]: every benchmark under tests/bench/
+# npm run bench [-- --only name,name] [-- --runs N] [-- --keep]: every benchmark under tests/bench/
 # on the "bench" profile (its own ports, data folder and build, .next-bench), started here as npm
 # test does — services, migrations, the demo seed, a build when the code changed, the app — then one
 # table of medians (scripts/bench-run.ts), written to bench-results/<commit>.json.
@@ -17,13 +17,14 @@ cleanup() {
 }
 trap cleanup EXIT
 args=()
-fresh=0
-for a in "$@"; do if [ "$a" = --fresh ]; then fresh=1; else args+=("$a"); fi; done
+keep=0
+for a in "$@"; do if [ "$a" = --keep ]; then keep=1; else args+=("$a"); fi; done
 
 bash scripts/install.sh
 port_open "$PORT" && die "port $PORT is taken; set PORT for the bench run"
-# Every run starts from the same demo data (comparable across commits) unless the data is kept.
-if [ "$fresh" = 1 ] || [ ! -f "$DATA_DIR/mariadb/.initialised" ]; then
+# Every run starts from the same freshly seeded demo (comparable across commits); --keep reuses
+# the bench profile's data from the last run (quicker; what the benches left behind stays).
+if [ "$keep" = 0 ] || [ ! -f "$DATA_DIR/mariadb/.initialised" ]; then
   bash scripts/services.sh reset >/dev/null
   unset NEXTAUTH_SECRET; . scripts/env.sh
 fi
