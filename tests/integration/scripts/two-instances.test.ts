@@ -35,11 +35,14 @@ beforeAll(async () => {
 }, 90_000);
 
 afterAll(async () => {
-  const tech = await signedIn(USERS.tech);
-  for (const id of extraImages) await tech.json(`/api/images/${id}`, 'DELETE');
-  await removeBenchReads(tech, testDb(), made);
-  await closeTestDb();
-  if (other?.pid) process.kill(-other.pid, 'SIGTERM');
+  if (other?.pid && other.exitCode === null) process.kill(-other.pid, 'SIGTERM');
+  try {
+    const tech = await signedIn(USERS.tech);
+    for (const id of extraImages) await tech.json(`/api/images/${id}`, 'DELETE');
+    await removeBenchReads(tech, testDb(), made);
+  } finally {
+    await closeTestDb();
+  }
 });
 
 const jpeg = async (seed: number) => new Uint8Array((await generateField({ seed, width: 800, height: 600, cells: 12, format: 'jpeg' })).image);
