@@ -33,7 +33,8 @@ mkdir -p "$LOG_DIR"
 npx tsx scripts/db.ts migrate
 npx tsx scripts/db.ts seed-if-empty
 # Build again only when the sources differ from the last bench build's.
-stamp="$(git rev-parse HEAD) $(git diff HEAD -- app components lib db storage proxy.ts instrumentation.ts next.config.mjs package-lock.json | sha256sum | cut -c1-16)"
+src=(app components lib db storage types public proxy.ts instrumentation.ts next.config.mjs postcss.config.mjs tailwind.config.ts tsconfig.json package-lock.json)
+stamp="$( { git ls-files -s -- "${src[@]}"; git diff -- "${src[@]}"; git ls-files --others --exclude-standard -- "${src[@]}"; } | sha256sum | cut -c1-16)"
 if [ ! -f "$NEXT_DIST_DIR/BUILD_ID" ] || [ "$(cat "$NEXT_DIST_DIR/.bench-stamp" 2>/dev/null)" != "$stamp" ]; then
   say "building the app for the benchmarks (next build into $NEXT_DIST_DIR)"
   if ! npx next build >"$LOG_DIR/build.log" 2>&1; then tail -60 "$LOG_DIR/build.log"; die "build failed"; fi
