@@ -6,6 +6,7 @@ import { benchRead, removeBenchReads, type BenchRead } from '../../bench/support
 import { built, sign } from '../reports/support';
 import { closeTestDb, testDb, unique } from '../support/db';
 import { goodCollection } from '../support/fixtures';
+import { demoIds, fill, GET_ROUTES, PAGES } from '../../support/surface';
 import { APP_URL, randomLoopback, Session, signedIn, USERS } from '../support/http';
 
 // A second app server (node server.mjs, same build, same MariaDB, object store and session secret,
@@ -81,6 +82,31 @@ describe('two app instances on one database and object store', { timeout: 120_00
     const ids = (x: { body: { marks: { id: string }[] } }) => new Set(x.body.marks.map((m) => m.id));
     expect(ids(viaA)).toEqual(sent);
     expect(ids(viaB)).toEqual(sent);
+  });
+
+  it('every GET route and page of the surface answers alike through both, with a session made on the other', async () => {
+    const ids = await demoIds(testDb());
+    const differences: string[] = [];
+    let tried = 0;
+    for (const [who, email, entries] of [
+      ['lab manager', USERS.manager, [...GET_ROUTES, ...PAGES]],
+      ['client', USERS.owner, GET_ROUTES],
+      ['no session', null, GET_ROUTES],
+    ] as const) {
+      const a = email ? await signedIn(email) : new Session();
+      // The same cookies, sent to the other instance: sessions are signed with the shared secret.
+      const b = new Session({ base: OTHER });
+      for (const c of a.cookieHeader.split('; ').filter(Boolean)) b.setCookie(c.slice(0, c.indexOf('=')), c.slice(c.indexOf('=') + 1));
+      for (const e of entries) {
+        const path = fill(e.path, ids);
+        const [ra, rb] = await Promise.all([a.fetch(path), b.fetch(path)]);
+        await Promise.all([ra.arrayBuffer(), rb.arrayBuffer()]);
+        tried++;
+        if (ra.status !== rb.status || rb.status >= 500) differences.push(`${who} ${path}: ${ra.status} on the first, ${rb.status} on the second`);
+      }
+    }
+    expect(differences).toEqual([]);
+    expect(tried).toBeGreaterThan(GET_ROUTES.length * 3);
   });
 
   it('sign-in limits count failed attempts across both instances', async () => {
