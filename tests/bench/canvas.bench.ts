@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Scoring canvas benchmark: place-a-mark and pan frame times with 1,000 marks on a
 // 12-megapixel field (4000 × 3000), in headless Chromium, timed inside the page.
 // Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N] [--read-back]

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Candidate detection benchmark: detectCandidates against sharp decoding the same image
 // alone, in the same run. Run: npx tsx tests/bench/detect.bench.ts [--count N] [--rounds R]
 //

@@ -1,5 +1,6 @@
 // @bench-conditions react-server (scripts/bench.sh runs this file with node's react-server
 // condition, so the server-only data modules load in plain Node as they do in the app.)
+// @bench-runs 1 (filling 100,000 marks is the slow part; each figure is the median of --runs timings)
 //
 // A stallion's history (db/queries/history.ts, as GET /api/stallions/:id/history and the history
 // page run it) for a stallion with 500 collections of 200 marks each (100,000 marks), against a

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Ingest benchmark: our checks + checksum + browser copies against sharp alone
 // making the same copies. Run: npx tsx tests/bench/ingest.bench.ts [--count N] [--rounds R]
 //

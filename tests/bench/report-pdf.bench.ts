@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Report PDF benchmark: rendering the example report (lib/reports/fixture.ts, three A4 pages:
 // tables, the class chart, the QR code) against rendering a one-line PDF with the same fonts in
 // the same run. Needs no services. Run: npx tsx tests/bench/report-pdf.bench.ts [--renders N]

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // server.mjs (what npm start serves: Next's handler behind a Node server that passes the socket's
 // address on) against Next's own `next start`, on the same build, in the same run, rounds
 // interleaved. The request is a mark sync without a session (answered 401 by route(), after its

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // What the signed-report lock costs a mark save, in the database alone: inserts into `marks`
 // (one row per statement, and ten per statement as the canvas's batches send them) by 50
 // concurrent writers on one read, with the lock triggers as migrated (a locking lookup of the

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // The whole scoring workbench, as a technician uses it: a read with 1,000 marks on a
 // 12-megapixel field (4000 × 3000) in the running app, marks placed by real mouse clicks in
 // headless Chromium. Needs the services and the app running (npm start, or npm run bench).
