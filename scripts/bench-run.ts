@@ -4,7 +4,8 @@
 //   tsx scripts/bench-run.ts [--only name,name] [--runs N]
 //   tsx scripts/bench-run.ts --compare A B        (two commits' results side by side)
 // A bench's header may say `@bench-runs N` (how many runs by default: heavy ones run once, their
-// figures being medians of their own rounds already) and `@bench-conditions react-server`.
+// figures being medians of their own rounds already), `@bench-conditions react-server` and
+// `@bench-args --option value …` (its own options under npm run bench).
 // Each run's full output goes to bench-results/<commit>.log.
 import { spawn, execFileSync } from 'node:child_process';
 import { appendFileSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
@@ -127,6 +128,8 @@ interface BenchFile {
   file: string;
   runs: number;
   conditions: string | null;
+  /** `@bench-args …`: the bench's own options under npm run bench (to keep the whole run bounded). */
+  args: string[];
 }
 
 export function discover(): BenchFile[] {
@@ -137,13 +140,14 @@ export function discover(): BenchFile[] {
       const head = readFileSync(join(BENCH_DIR, f), 'utf8').split('\n').slice(0, 30).join('\n');
       const runs = /@bench-runs (\d+)/.exec(head);
       const cond = /@bench-conditions ([\w-]+)/.exec(head);
-      return { name: basename(f, '.bench.ts'), file: join('tests', 'bench', f), runs: runs ? Number(runs[1]) : 3, conditions: cond ? cond[1]! : null };
+      const args = /@bench-args ([^\n(]+)/.exec(head);
+      return { name: basename(f, '.bench.ts'), file: join('tests', 'bench', f), runs: runs ? Number(runs[1]) : 3, conditions: cond ? cond[1]! : null, args: args ? args[1]!.trim().split(/\s+/) : [] };
     });
 }
 
 function runOnce(b: BenchFile, log: string): Promise<Figure[]> {
   return new Promise((resolve, reject) => {
-    const args = ['tsx', ...(b.conditions ? [`--conditions=${b.conditions}`] : []), b.file];
+    const args = ['tsx', ...(b.conditions ? [`--conditions=${b.conditions}`] : []), b.file, ...b.args];
     const child = spawn('npx', args, { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'], detached: true });
     let out = '';
     let err = '';

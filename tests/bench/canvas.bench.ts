@@ -1,4 +1,5 @@
 // @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
+// @bench-args --placements 20 --frames 20 (under npm run bench: the plain-Konva baseline draws the whole 12-MP image each time, slow without a GPU)
 // Scoring canvas benchmark: place-a-mark and pan frame times with 1,000 marks on a
 // 12-megapixel field (4000 × 3000), in headless Chromium, timed inside the page.
 // Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N] [--read-back]
