@@ -18,8 +18,8 @@ import { randomLoopback, Session } from '../integration/support/http';
 import { arg, emitFigures, quantile, type Figure } from './support';
 
 const TECHS = arg('technicians', 50);
-const READERS = arg('readers', 5);
-const VETS = arg('vets', 2);
+const READERS = arg('readers', 5, 0);
+const VETS = arg('vets', 2, 0);
 const SECONDS = arg('seconds', 60);
 const PASSWORD = 'load-bench-password-1';
 const P99_TARGET_MS = 250;
@@ -108,6 +108,7 @@ async function main() {
 
   try {
     const mkUsers = async (role: string, n: number, kind: string) => {
+      if (n === 0) return [];
       const rows = Array.from({ length: n }, (_, i) => ({ email: `${kind}${i}.${tag}@quillfield.example`, name: `Load ${kind} ${i}`, role, active: true, password_hash: hash }));
       const [first] = await db('users').insert(rows);
       const ids = rows.map((_, k) => first + k);

@@ -2,11 +2,11 @@
 import type { Knex } from 'knex';
 import type { Session } from '../integration/support/http';
 
-/** `--name N` from the command line, a positive whole number. */
-export function arg(name: string, fallback: number): number {
+/** `--name N` from the command line, a whole number of at least `min` (1 unless said). */
+export function arg(name: string, fallback: number, min = 1): number {
   const i = process.argv.indexOf(`--${name}`);
   const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
-  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
+  if (!Number.isInteger(v) || v < min) throw new Error(`--${name} must be a whole number of at least ${min}`);
   return v;
 }
 
