@@ -16,24 +16,22 @@ import { knexConfig } from '../knexfile';
 import { env } from '../lib/env';
 import { clientArgs, DUMP, MANIFEST, type Manifest, objectPath, s3, say, sha256File, tableDifferences, tableStates } from './backup-core';
 
-function dump(file: string, database: string): Promise<void> {
+async function dump(file: string, database: string): Promise<void> {
   const { args, env: childEnv } = clientArgs();
-  return new Promise((resolveDump, reject) => {
-    const child = spawn(
-      'mariadb-dump',
-      [...args, '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--no-tablespaces', '--skip-dump-date', database],
-      { env: childEnv, stdio: ['ignore', 'pipe', 'pipe'] },
-    );
-    let err = '';
-    child.stderr.on('data', (d) => (err += d));
-    const out = createWriteStream(file);
-    child.stdout.pipe(out);
+  const child = spawn(
+    'mariadb-dump',
+    [...args, '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--no-tablespaces', '--skip-dump-date', database],
+    { env: childEnv, stdio: ['ignore', 'pipe', 'pipe'] },
+  );
+  let err = '';
+  child.stderr.on('data', (d) => (err += d));
+  const exited = new Promise<number | null>((resolveExit, reject) => {
     child.on('error', reject);
-    child.on('close', (code) => {
-      out.on('close', () => (code === 0 ? resolveDump() : reject(new Error(`mariadb-dump failed (exit ${code}): ${err.trim().slice(0, 500)}`))));
-      out.end();
-    });
+    child.on('close', resolveExit);
   });
+  // Both awaited on their own: the file may be finished before or after the process has exited.
+  const [, code] = await Promise.all([pipeline(child.stdout, createWriteStream(file)), exited]);
+  if (code !== 0) throw new Error(`mariadb-dump failed (exit ${code}): ${err.trim().slice(0, 500)}`);
 }
 
 async function main() {
@@ -83,7 +81,16 @@ async function main() {
   }
 }
 
-main().catch((err) => {
-  console.error(`[fieldmark] backup failed: ${err instanceof Error ? err.message : err}`);
+// Node exits with 0 when nothing is left to wait for: a promise that never settled would look like success.
+let finished = false;
+process.on('beforeExit', () => {
+  if (finished) return;
+  console.error('[fieldmark] backup failed: it stopped before it finished');
   process.exit(1);
 });
+main()
+  .then(() => (finished = true))
+  .catch((err) => {
+    console.error(`[fieldmark] backup failed: ${err instanceof Error ? err.message : err}`);
+    process.exit(1);
+  });

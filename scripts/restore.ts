@@ -9,6 +9,7 @@ import { spawn } from 'node:child_process';
 import { createReadStream, existsSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { Transform } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
 import { CreateBucketCommand, DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, ListObjectsV2Command, PutObjectCommand } from '@aws-sdk/client-s3';
 import knexFactory from 'knex';
 import { grantAppAccount } from '../db/grants';
@@ -41,7 +42,8 @@ function load(file: string, database: string): Promise<void> {
     child.stderr.on('data', (d) => (err += d));
     child.on('error', reject);
     child.on('close', (code) => (code === 0 ? resolveLoad() : reject(new Error(`loading the dump failed (exit ${code}): ${err.trim().slice(0, 500)}`))));
-    createReadStream(file).pipe(withoutDefiners()).pipe(child.stdin);
+    // A client that stops early closes its input: its exit code tells why, not the broken pipe.
+    pipeline(createReadStream(file), withoutDefiners(), child.stdin).catch(() => {});
   });
 }
 
@@ -124,7 +126,16 @@ async function main() {
   }
 }
 
-main().catch((err) => {
-  console.error(`[fieldmark] restore failed: ${err instanceof Error ? err.message : err}`);
+// Node exits with 0 when nothing is left to wait for: a promise that never settled would look like success.
+let finished = false;
+process.on('beforeExit', () => {
+  if (finished) return;
+  console.error('[fieldmark] restore failed: it stopped before it finished');
   process.exit(1);
 });
+main()
+  .then(() => (finished = true))
+  .catch((err) => {
+    console.error(`[fieldmark] restore failed: ${err instanceof Error ? err.message : err}`);
+    process.exit(1);
+  });

@@ -9,7 +9,8 @@ import { type Manifest, sha256, tableStates } from '../../../scripts/backup-core
 
 // npm run backup on the test profile's demo, npm run restore into a scratch profile of its own
 // (own ports, data folder, database and bucket), and everything compared.
-const dir = mkdtempSync(join(tmpdir(), 'fm-backup-'));
+// In the profile's own data folder (npm test starts it empty), not the machine's shared /tmp.
+const dir = mkdtempSync(join(process.env.DATA_DIR ?? tmpdir(), 'backup-test-'));
 const backup = join(dir, 'snapshot');
 // Ports a fixed step above this run's own (services.test.ts uses +5), so nothing collides.
 const near = (name: string, fallback: number) => String(Number(process.env[name] ?? fallback) + 6);
@@ -81,6 +82,7 @@ describe('backup and restore', { timeout: 180_000 }, () => {
   it('backs up the demo: a dump, every object, and a manifest of checksums', async () => {
     const r = script('backup', [backup], process.env);
     expect(r.status, r.stderr + r.stdout).toBe(0);
+    expect(r.stdout).toMatch(/backed up \d+ tables/);
     manifest = JSON.parse(readFileSync(join(backup, 'manifest.json'), 'utf8'));
     // The manifest describes the live demo: tables, rows and objects.
     const live = await tableStates(source, DB_NAME);

@@ -158,7 +158,7 @@ describe('two app instances on one database and object store', { timeout: 120_00
       if (jobs.length === images.length && jobs.every((j) => j.status === 'done')) break;
       await new Promise((res) => setTimeout(res, 300));
     }
-    expect(jobs.map((j) => j.status)).toEqual(images.map(() => 'done'));
+    expect(jobs.map((j) => j.status), `jobs ${JSON.stringify(jobs)}; the second instance said:\n${otherLog.slice(-1500)}`).toEqual(images.map(() => 'done'));
     // One claim per job (a second taker would have counted a second attempt), by a named worker.
     for (const j of jobs) {
       expect(j.attempts, `image ${j.image_id}`).toBe(1);
