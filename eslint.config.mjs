@@ -9,7 +9,7 @@ export default tseslint.config(
   ...nextVitals,
   ...nextTs,
   {
-    ignores: ['.next/**', '.next-test/**', '.data/**', 'node_modules/**', 'test-results/**', 'playwright-report/**', 'tests/bench/out/**', 'next-env.d.ts'],
+    ignores: ['.next/**', '.next-test/**', '.next-bench/**', 'bench-results/**', 'backups/**', '.data/**', 'node_modules/**', 'test-results/**', 'playwright-report/**', 'tests/bench/out/**', 'next-env.d.ts'],
   },
   {
     rules: {

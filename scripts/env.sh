@@ -1,4 +1,4 @@
-# Sourced by the other scripts. FIELDMARK_PROFILE=dev (default) or test picks
+# Sourced by the other scripts. FIELDMARK_PROFILE=dev (default), test or bench picks
 # ports and a data folder, so a test run never touches the demo's data.
 # Anything already set in the environment (or in .env) wins.
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
@@ -11,6 +11,9 @@ if [ "$PROFILE" = test ]; then
   # Tests wait for detection jobs and their retries: look often, retry soon.
   : "${CANDIDATE_POLL_MS:=200}" "${CANDIDATE_RETRY_MS:=300}"
   export UPLOAD_MAX_MB CANDIDATE_POLL_MS CANDIDATE_RETRY_MS
+elif [ "$PROFILE" = bench ]; then
+  # npm run bench: its own ports and data folder, so benchmarks never touch the demo or a test run.
+  : "${DB_PORT:=3427}" "${S3_PORT:=4589}" "${SMTP_PORT:=1045}" "${MAIL_WEB_PORT:=1100}" "${PORT:=3200}"
 else
   : "${DB_PORT:=3407}" "${S3_PORT:=4569}" "${SMTP_PORT:=1025}" "${MAIL_WEB_PORT:=1080}" "${PORT:=3000}"
 fi

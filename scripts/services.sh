@@ -10,6 +10,7 @@ cmd="${1:-status}"
 DB_DIR="$DATA_DIR/mariadb"
 DB_SOCK="$RUN_DIR/mariadb.sock"
 DB_PID="$RUN_DIR/mariadb.pid"
+DB_TMP="$DATA_DIR/mariadb-tmp"
 export DB_SOCKET="$DB_SOCK"
 
 db_ping() { mariadb-admin --no-defaults --socket="$DB_SOCK" -uroot ping >/dev/null 2>&1; }
@@ -60,10 +61,13 @@ db_start() {
       || die "mariadb-install-db failed; see $LOG_DIR/mariadb-install.log"
     touch "$DB_DIR/.initialised"
   fi
+  # Temporary tables on disk go in the profile's own folder, not the machine's shared /tmp (where
+  # another program's clean-up once removed one mid-query).
+  mkdir -p "$DB_TMP"
   setsid mariadbd --no-defaults --datadir="$DB_DIR" --user=root --bind-address=127.0.0.1 \
     --port="$DB_PORT" --socket="$DB_SOCK" --pid-file="$DB_PID" --log-error="$LOG_DIR/mariadb.log" \
     --skip-name-resolve --open-files-limit=4096 --character-set-server=utf8mb4 \
-    --collation-server=utf8mb4_unicode_ci --innodb-log-file-size=16M --max-connections=300 \
+    --collation-server=utf8mb4_unicode_ci --innodb-log-file-size=16M --max-connections=300 --tmpdir="$DB_TMP" \
     </dev/null >/dev/null 2>&1 &
   local i; for ((i = 0; i < 300; i++)); do db_ping && break; sleep 0.1; done
   db_ping || die "MariaDB did not start; see $LOG_DIR/mariadb.log"

@@ -1,3 +1,5 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
+// @bench-args --placements 20 --frames 20 (under npm run bench: the plain-Konva baseline draws the whole 12-MP image each time, slow without a GPU)
 // Scoring canvas benchmark: place-a-mark and pan frame times with 1,000 marks on a
 // 12-megapixel field (4000 × 3000), in headless Chromium, timed inside the page.
 // Run: npx tsx tests/bench/canvas.bench.ts [--placements N] [--frames N] [--read-back]
@@ -22,7 +24,7 @@ import { fileURLToPath } from 'node:url';
 import { chromium } from '@playwright/test';
 import { build } from 'esbuild';
 import { generateField } from '@/lib/synthetic/generate-field';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
@@ -152,6 +154,10 @@ async function main() {
     const panP95 = q(ours.pan, 0.95);
     console.log(`\np95 repaint < ${TARGET_MS} ms: ${placeP95 < TARGET_MS ? 'PASS' : 'FAIL'} (place + repaint p95 ${f(placeP95)} ms)`);
     console.log(`p95 pan frame < ${TARGET_MS} ms: ${panP95 < TARGET_MS ? 'PASS' : 'FAIL'} (pan step + draw p95 ${f(panP95)} ms)`);
+    emitFigures('canvas', [
+      { name: `canvas place + repaint, ${MARKS} marks, p95`, unit: 'ms', value: placeP95, baseline: { name: '0 marks', value: q(empty.place, 0.95) }, better: 'lower', target: { on: 'value', max: TARGET_MS }, details: { p50_ms: q(ours.place, 0.5), plain_konva_p95_ms: q(plain.place, 0.95) } },
+      { name: `canvas pan step + draw, ${MARKS} marks, p95`, unit: 'ms', value: panP95, baseline: { name: '0 marks', value: q(empty.pan, 0.95) }, better: 'lower', target: { on: 'value', max: TARGET_MS }, details: { p50_ms: q(ours.pan, 0.5), plain_konva_p95_ms: q(plain.pan, 0.95) } },
+    ]);
   } finally {
     await browser.close();
     server.close();

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Candidate detection benchmark: detectCandidates against sharp decoding the same image
 // alone, in the same run. Run: npx tsx tests/bench/detect.bench.ts [--count N] [--rounds R]
 //
@@ -28,7 +29,7 @@ import sharp from 'sharp';
 import { detectCandidates } from '@/lib/candidates/detect';
 import { loadOpenCv } from '@/lib/candidates/opencv';
 import { generateField, type FieldFormat } from '@/lib/synthetic/generate-field';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const TARGET = 3;
 const MICRONS_PER_PIXEL = 0.25;
@@ -170,6 +171,9 @@ async function main(): Promise<void> {
     lines.push(`Idle child with sharp and OpenCV loaded: ${mb(idle)} MB peak RSS.`);
     lines.push(`detection p50 ≤ ${TARGET} × sharp decode p50 (every group), wall clock: ${pass ? 'PASS' : 'FAIL'}; CPU time: ${cpuPass ? 'PASS' : 'FAIL'} (load average ${loadavg().map((v) => v.toFixed(1)).join(' ')})`);
     console.log(lines.join('\n'));
+    emitFigures('detect', [
+      { name: 'candidate detection, p50 per 12-MP image', unit: 'ms', value: quantile(times.detection.all, 0.5), baseline: { name: 'sharp decode', value: quantile(times['sharp decode'].all, 0.5) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details: { p95_ms: quantile(times.detection.all, 0.95), peak_rss_mb: peaks.detection / 2 ** 20 } },
+    ]);
   } finally {
     await rm(dir, { recursive: true, force: true });
   }

@@ -1,5 +1,6 @@
 // @bench-conditions react-server (scripts/bench.sh runs this file with node's react-server
 // condition, so the server-only data modules load in plain Node as they do in the app.)
+// @bench-runs 1 (filling 100,000 marks is the slow part; each figure is the median of --runs timings)
 //
 // A stallion's history (db/queries/history.ts, as GET /api/stallions/:id/history and the history
 // page run it) for a stallion with 500 collections of 200 marks each (100,000 marks), against a
@@ -10,7 +11,7 @@
 import { DEFAULT_CLASS_SET } from '../../lib/class-sets/default-set';
 import { mulberry32 } from '../../lib/synthetic/prng';
 import { signedIn, USERS } from '../integration/support/http';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const COLLECTIONS = arg('collections', 500);
 const MARKS = arg('marks', 200);
@@ -124,6 +125,11 @@ async function main() {
     line('GET /api/stallions/:id/history (session, JSON, HTTP)', 'route');
     const ratio = p50('history') / p50('bare');
     console.log(`\nTarget: history query within 2 × the bare count — ${ratio <= 2 ? 'met' : 'NOT met'} (${ratio.toFixed(2)} ×).`);
+    const bareFig = { name: 'bare grouped count', value: p50('bare') };
+    emitFigures('history', [
+      { name: `history query, ${(COLLECTIONS * MARKS).toLocaleString('en-GB')} marks, p50`, unit: 'ms', value: p50('history'), baseline: bareFig, better: 'lower', target: { on: 'ratio', max: 2 }, details: { p95_ms: p95('history') } },
+      { name: 'GET history route, p50', unit: 'ms', value: p50('route'), baseline: bareFig, better: 'lower', target: null, details: { p95_ms: p95('route') } },
+    ]);
   } finally {
     await cleanUp();
     await db.destroy();

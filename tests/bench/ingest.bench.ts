@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Ingest benchmark: our checks + checksum + browser copies against sharp alone
 // making the same copies. Run: npx tsx tests/bench/ingest.bench.ts [--count N] [--rounds R]
 //
@@ -24,7 +25,7 @@ import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
 import { ingestImage } from '@/lib/images/ingest';
 import { generateField, type FieldFormat } from '@/lib/synthetic/generate-field';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const LIMITS = { maxBytes: 200 * 1024 * 1024, maxPixels: 50_000_000 };
 const TARGET = 1.3;
@@ -186,6 +187,10 @@ async function main(): Promise<void> {
     lines.push(`Idle process with sharp loaded: ${mb(idle)} MB peak RSS.`);
     lines.push(`pipeline ≤ ${TARGET} × sharp alone (median, every group): ${pass ? 'PASS' : 'FAIL'}`);
     console.log(lines.join('\n'));
+    const all = (n: CaseName) => times[n].all;
+    emitFigures('ingest', [
+      { name: 'image ingest (checks, SHA-256, copies), median per 12-MP image', unit: 'ms', value: median(all('pipeline')), baseline: { name: 'sharp alone', value: median(all('sharp alone')) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details: { p95_ms: p95(all('pipeline')), peak_rss_mb: childPeaks.pipeline / 2 ** 20 } },
+    ]);
   } finally {
     await rm(dir, { recursive: true, force: true });
   }

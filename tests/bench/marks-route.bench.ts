@@ -5,7 +5,7 @@ import knexFactory from 'knex';
 import sharp from 'sharp';
 import { knexConfig } from '../../knexfile';
 import { APP_URL, signedIn, USERS } from '../integration/support/http';
-import { arg, benchRead, quantile, removeBenchReads } from './support';
+import { arg, benchRead, emitFigures, quantile, removeBenchReads } from './support';
 
 const WRITERS = arg('writers', 50);
 const PER_WRITER = arg('per-writer', 40);
@@ -88,7 +88,17 @@ async function main() {
   const batchRatio = batchSaves.perSecond / baseline.perSecond;
   const floorRatio = floor.perSecond / baseline.perSecond;
   console.log(`\nTarget: route throughput ≥ 0.5 × bare insert — as the canvas sends under load (${BATCH} per request): ${batchRatio >= 0.5 ? 'PASS' : 'FAIL'} (${batchRatio.toFixed(2)}); one mark per request: ${ratio >= 0.5 ? 'PASS' : 'FAIL'} (${ratio.toFixed(2)}, bounded by the framework floor of ${floorRatio.toFixed(2)} requests per bare insert)`);
-  console.log(`Every route save stored exactly once: ${Number(saved?.n) === routeRun.n + batchSaves.n + 1 ? 'yes' : `NO (${saved?.n})`}`);
+  const exactlyOnce = Number(saved?.n) === routeRun.n + batchSaves.n + 1;
+  console.log(`Every route save stored exactly once: ${exactlyOnce ? 'yes' : `NO (${saved?.n})`}`);
+  const bare = { name: 'bare Knex insert', value: baseline.perSecond };
+  const bareP99 = { name: 'bare Knex insert p99', value: baseline.p99 };
+  emitFigures('marks-route', [
+    { name: `mark saves/s, ${WRITERS} writers, 1 per request`, unit: 'saves/s', value: routeRun.perSecond, baseline: bare, better: 'higher', target: { on: 'ratio', min: 0.5 }, details: { p50_ms: routeRun.p50, p99_ms: routeRun.p99, saves: routeRun.n } },
+    { name: `mark saves/s, ${WRITERS} writers, ${BATCH} per request`, unit: 'saves/s', value: batchSaves.perSecond, baseline: bare, better: 'higher', target: { on: 'ratio', min: 0.5 }, details: { p50_ms: batchSaves.p50, p99_ms: batchSaves.p99, saves: batchSaves.n } },
+    { name: `mark save p99, ${WRITERS} writers, 1 per request`, unit: 'ms', value: routeRun.p99, baseline: bareP99, better: 'lower', target: { on: 'value', max: 250 }, details: { p50_ms: routeRun.p50 } },
+    { name: 'route floor (401, no database) req/s', unit: 'req/s', value: floor.perSecond, baseline: bare, better: 'higher', target: null },
+    { name: 'route saves stored exactly once', unit: 'bool', value: exactlyOnce ? 1 : 0, baseline: null, better: 'higher', target: { on: 'value', min: 1 } },
+  ]);
   // The benchmark's rows stay out of the demo: remove them.
   await removeBenchReads(s, db, [made]);
   await db.destroy();

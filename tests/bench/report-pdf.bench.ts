@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Report PDF benchmark: rendering the example report (lib/reports/fixture.ts, three A4 pages:
 // tables, the class chart, the QR code) against rendering a one-line PDF with the same fonts in
 // the same run. Needs no services. Run: npx tsx tests/bench/report-pdf.bench.ts [--renders N]
@@ -12,7 +13,7 @@ import { exampleReportSnapshot } from '@/lib/reports/fixture';
 import { PDF_FONT_FAMILY, registerPdfFonts } from '@/lib/reports/pdf/fonts';
 import { renderReportPdf } from '@/lib/reports/pdf/render';
 import { parseReportSnapshot } from '@/lib/reports/snapshot';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const APP = 'https://reports.quillfield.example';
 
@@ -64,6 +65,9 @@ async function main() {
     `| validate only (parse the stored JSON) | ${renders} | ${p50(times.validate).toFixed(2)} | ${p95(times.validate).toFixed(2)} | ${(p50(times.validate) / base).toFixed(2)} |`,
   ];
   console.log(lines.join('\n'));
+  emitFigures('report-pdf', [
+    { name: `report PDF render (${pages} pages), p50`, unit: 'ms', value: p50(times.report), baseline: { name: 'one-line PDF', value: base }, better: 'lower', target: null, details: { p95_ms: p95(times.report), cold_ms: coldMs } },
+  ]);
 }
 
 main().catch((err: unknown) => {

@@ -1,10 +1,11 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // server.mjs (what npm start serves: Next's handler behind a Node server that passes the socket's
 // address on) against Next's own `next start`, on the same build, in the same run, rounds
 // interleaved. The request is a mark sync without a session (answered 401 by route(), after its
 // cross-site check): the whole framework path, no database work.
 // Needs the app running (npm start). Usage: npx tsx tests/bench/server.bench.ts [--rounds 10] [--requests 300] [--concurrency 20]
 import { spawn } from 'node:child_process';
-import { arg, quantile } from './support';
+import { arg, emitFigures, quantile } from './support';
 
 const APP_URL = process.env.APP_URL ?? 'http://localhost:3000';
 const rounds = arg('rounds', 10);
@@ -51,6 +52,9 @@ try {
   for (const [name, xs] of [['next start (baseline)', rate.next], ['server.mjs (npm start)', rate.served]] as const) {
     console.log(`| ${name} | ${med(xs).toFixed(0)} | ${quantile(xs, 0.1).toFixed(0)} | ${quantile(xs, 0.9).toFixed(0)} | ${(med(xs) / med(rate.next)).toFixed(2)} |`);
   }
+  emitFigures('server', [
+    { name: 'server.mjs req/s (401 path)', unit: 'req/s', value: med(rate.served), baseline: { name: 'next start', value: med(rate.next) }, better: 'higher', target: { on: 'ratio', min: 0.9 }, details: { p10: quantile(rate.served, 0.1), p90: quantile(rate.served, 0.9) } },
+  ]);
 } finally {
   if (nextStart.pid) process.kill(-nextStart.pid);
 }

@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // What the signed-report lock costs a mark save, in the database alone: inserts into `marks`
 // (one row per statement, and ten per statement as the canvas's batches send them) by 50
 // concurrent writers on one read, with the lock triggers as migrated (a locking lookup of the
@@ -7,7 +8,7 @@
 // owner); needs only MariaDB. Usage: npx tsx tests/bench/signed-lock.bench.ts [--rounds 4] [--writers 50] [--per-writer 40]
 import knexFactory from 'knex';
 import { knexConfig } from '../../knexfile';
-import { arg, quantile } from './support';
+import { arg, emitFigures, type Figure, quantile } from './support';
 
 const ROUNDS = arg('rounds', 4);
 const WRITERS = arg('writers', 50);
@@ -88,13 +89,16 @@ async function main() {
     console.log(`\nMark inserts with and without the signed-report lock, ${WRITERS} writers × ${PER_WRITER} statements, ${ROUNDS} interleaved rounds (medians)\n`);
     console.log('| triggers on marks | marks per statement | marks/s | p50 ms per statement | vs no triggers |');
     console.log('|---|---|---|---|---|');
+    const figures: Figure[] = [];
     for (const batch of [1, 10]) {
       const baseline = median(results.get(`${VARIANTS[0]}|${batch}`)!.rate);
       for (const v of VARIANTS) {
         const r = results.get(`${v}|${batch}`)!;
         console.log(`| ${v} | ${batch} | ${median(r.rate).toFixed(0)} | ${median(r.p50).toFixed(1)} | ${(median(r.rate) / baseline).toFixed(2)} |`);
+        if (v === VARIANTS[2]) figures.push({ name: `marks/s with the lock triggers, ${batch} per statement`, unit: 'marks/s', value: median(r.rate), baseline: { name: 'no triggers', value: baseline }, better: 'higher', target: null, details: { p50_ms: median(r.p50) } });
       }
     }
+    emitFigures('signed-lock', figures);
   } finally {
     await db.destroy();
     await admin.raw('DROP DATABASE IF EXISTS ??', [NAME]);

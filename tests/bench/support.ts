@@ -2,11 +2,11 @@
 import type { Knex } from 'knex';
 import type { Session } from '../integration/support/http';
 
-/** `--name N` from the command line, a positive whole number. */
-export function arg(name: string, fallback: number): number {
+/** `--name N` from the command line, a whole number of at least `min` (1 unless said). */
+export function arg(name: string, fallback: number, min = 1): number {
   const i = process.argv.indexOf(`--${name}`);
   const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
-  if (!Number.isInteger(v) || v < 1) throw new Error(`--${name} must be a positive whole number`);
+  if (!Number.isInteger(v) || v < min) throw new Error(`--${name} must be a whole number of at least ${min}`);
   return v;
 }
 
@@ -59,3 +59,31 @@ export async function removeBenchReads(s: Session, db: Knex, made: BenchRead[]):
     await db('collections').where({ id: r.collectionId }).delete();
   }
 }
+
+/**
+ * One figure of a benchmark, for `npm run bench`'s table (scripts/bench-run.ts): the measured
+ * value, the baseline measured in the same run, and the target on the ratio (value ÷ baseline)
+ * or on the value itself. `better` says which way is good.
+ */
+export interface Figure {
+  name: string;
+  unit: string;
+  value: number;
+  /** What the value is compared with, measured in the same run (null: an absolute target only). */
+  baseline: { name: string; value: number } | null;
+  better: 'lower' | 'higher';
+  /** The target: on the ratio or on the value, at most or at least `limit`. */
+  target: { on: 'ratio' | 'value'; max?: number; min?: number } | null;
+  /** Other absolute figures shown beside it (p50, p95, counts…). */
+  details?: Record<string, number>;
+}
+
+export const BENCH_JSON = 'BENCH_JSON ';
+
+/** Prints the figures as one machine-readable line (the human table stays above it). */
+export function emitFigures(bench: string, figures: Figure[]): void {
+  for (const f of figures) if (!Number.isFinite(f.value)) throw new Error(`${bench}: figure "${f.name}" is not a number (${f.value})`);
+  console.log(`${BENCH_JSON}${JSON.stringify({ bench, figures })}`);
+}
+
+export const median = (xs: number[]) => quantile(xs, 0.5);

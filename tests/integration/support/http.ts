@@ -11,10 +11,15 @@ export const randomLoopback = () => `127.${1 + Math.floor(Math.random() * 250)}.
 export class Session {
   private cookies = new Map<string, string>();
   private dispatcher?: Agent;
+  private base: string;
 
-  /** `from`: the local address to connect from (a loopback address other than 127.0.0.1). */
-  constructor(opts: { from?: string } = {}) {
+  /**
+   * `from`: the local address to connect from (a loopback address other than 127.0.0.1).
+   * `base`: another app instance to talk to (default APP_URL).
+   */
+  constructor(opts: { from?: string; base?: string } = {}) {
     if (opts.from) this.dispatcher = new Agent({ localAddress: opts.from });
+    this.base = opts.base ?? APP_URL;
   }
 
   private store(res: Response) {
@@ -38,8 +43,8 @@ export class Session {
     if (this.cookies.size) headers.set('cookie', this.cookieHeader);
     const send = (): Promise<Response> =>
       this.dispatcher
-        ? (undiciFetch(`${APP_URL}${path}`, { ...(init as object), headers, redirect: 'manual', dispatcher: this.dispatcher }) as unknown as Promise<Response>)
-        : fetch(`${APP_URL}${path}`, { ...init, headers, redirect: 'manual' });
+        ? (undiciFetch(`${this.base}${path}`, { ...(init as object), headers, redirect: 'manual', dispatcher: this.dispatcher }) as unknown as Promise<Response>)
+        : fetch(`${this.base}${path}`, { ...init, headers, redirect: 'manual' });
     let res: Response;
     try {
       res = await send();
@@ -84,7 +89,7 @@ export class Session {
   }
 }
 
-export async function signedIn(email: string, opts: { from?: string } = {}): Promise<Session> {
+export async function signedIn(email: string, opts: { from?: string; base?: string } = {}): Promise<Session> {
   const s = new Session(opts);
   const err = await s.signIn(email);
   if (err) throw new Error(`sign-in as ${email} failed: ${err}`);
