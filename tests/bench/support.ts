@@ -1,6 +1,7 @@
 // Shared by the benchmarks: command-line numbers, quantiles, and a throw-away read in the running app.
 import type { Knex } from 'knex';
-import type { Session } from '../integration/support/http';
+import { chromium, type Browser, type Page } from '@playwright/test';
+import { APP_URL, type Session } from '../integration/support/http';
 
 /** `--name N` from the command line, a whole number of at least `min` (1 unless said). */
 export function arg(name: string, fallback: number, min = 1): number {
@@ -87,3 +88,26 @@ export function emitFigures(bench: string, figures: Figure[]): void {
 }
 
 export const median = (xs: number[]) => quantile(xs, 0.5);
+
+/**
+ * Debian's Chromium with a laptop-sized page signed in as the session's user (its cookies copied
+ * over), and the page errors it collects. The caller closes `browser`.
+ */
+export async function signedInPage(s: Session): Promise<{ browser: Browser; page: Page; errors: string[] }> {
+  const browser = await chromium.launch({
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--no-first-run'],
+  });
+  const context = await browser.newContext({ viewport: { width: 1366, height: 900 } });
+  const url = new URL(APP_URL);
+  await context.addCookies(
+    s.cookieHeader.split('; ').map((c) => {
+      const i = c.indexOf('=');
+      return { name: c.slice(0, i), value: c.slice(i + 1), domain: url.hostname, path: '/' };
+    }),
+  );
+  const page = await context.newPage();
+  const errors: string[] = [];
+  page.on('pageerror', (e) => errors.push(String(e)));
+  return { browser, page, errors };
+}

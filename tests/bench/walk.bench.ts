@@ -11,12 +11,12 @@
 // (slow and environment-bound without a GPU) is left out, as in the other canvas benches.
 // Baseline in the same run, same page: an arrow key panning the view, with the same drawing.
 // Exits 0 whatever the numbers are (a measurement, not a test) unless something fails.
-import { chromium, type Page } from '@playwright/test';
+import type { Page } from '@playwright/test';
 import knexFactory from 'knex';
 import { knexConfig } from '../../knexfile';
 import { generateField } from '@/lib/synthetic/generate-field';
 import { APP_URL, signedIn, USERS, type Session } from '../integration/support/http';
-import { arg, benchRead, ok, quantile, removeBenchReads, type BenchRead } from './support';
+import { arg, signedInPage, benchRead, ok, quantile, removeBenchReads, type BenchRead } from './support';
 
 const TARGET_MS = 50;
 
@@ -110,22 +110,8 @@ async function main() {
   const s = await signedIn(USERS.tech);
   console.error('preparing a read on a generated 4000 × 3000 field (200 cells) and waiting for its candidates…');
   const made = await makeRead(s);
-  const browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--no-first-run'],
-  });
+  const { browser, page, errors } = await signedInPage(s);
   try {
-    const context = await browser.newContext({ viewport: { width: 1366, height: 900 } });
-    const url = new URL(APP_URL);
-    await context.addCookies(
-      s.cookieHeader.split('; ').map((c) => {
-        const i = c.indexOf('=');
-        return { name: c.slice(0, i), value: c.slice(i + 1), domain: url.hostname, path: '/' };
-      }),
-    );
-    const page = await context.newPage();
-    const errors: string[] = [];
-    page.on('pageerror', (e) => errors.push(String(e)));
     await openWalk(page, made.readId);
     await timeKeys(page, '1', 5, true); // warm-up (JIT, caches), not reported
     await timeKeys(page, 'ArrowRight', 5, false);

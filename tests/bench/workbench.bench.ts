@@ -11,7 +11,7 @@
 // left out, as in tests/bench/canvas.bench.ts, which times the canvas alone.
 // Baseline in the same run: the same page with no marks on the image.
 // Exits 0 whatever the numbers are (a measurement, not a test) unless something fails.
-import { chromium, type Page } from '@playwright/test';
+import type { Page } from '@playwright/test';
 import knexFactory from 'knex';
 import { knexConfig } from '../../knexfile';
 import { generateField } from '@/lib/synthetic/generate-field';
@@ -19,7 +19,7 @@ import { markerRadiusForScale } from '@/lib/scoring/marker-draw';
 import { fitToScreen } from '@/lib/scoring/viewport';
 import { mulberry32 } from '@/lib/synthetic/prng';
 import { APP_URL, signedIn, USERS, type Session } from '../integration/support/http';
-import { arg, benchRead, emitFigures, ok, quantile, removeBenchReads, type BenchRead } from './support';
+import { arg, signedInPage, benchRead, emitFigures, ok, quantile, removeBenchReads, type BenchRead } from './support';
 
 const W = 4000;
 const H = 3000;
@@ -109,22 +109,8 @@ async function main() {
   console.error('preparing two reads (1,000 marks and none) on generated 4000 × 3000 fields…');
   const full = await makeRead(s, MARKS, 9001);
   const empty = await makeRead(s, 0, 9002);
-  const browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--no-first-run'],
-  });
+  const { browser, page, errors } = await signedInPage(s);
   try {
-    const context = await browser.newContext({ viewport: { width: 1366, height: 900 } });
-    const url = new URL(APP_URL);
-    await context.addCookies(
-      s.cookieHeader.split('; ').map((c) => {
-        const i = c.indexOf('=');
-        return { name: c.slice(0, i), value: c.slice(i + 1), domain: url.hostname, path: '/' };
-      }),
-    );
-    const page = await context.newPage();
-    const errors: string[] = [];
-    page.on('pageerror', (e) => errors.push(String(e)));
     await placeMarks(s, page, empty.readId, 5, 1); // warm-up (JIT, caches), not reported
     const withMarks = await placeMarks(s, page, full.readId, placements, 2);
     const noMarks = await placeMarks(s, page, empty.readId, placements, 3);
