@@ -27,6 +27,16 @@ async function setUp() {
   return { collectionId, imageId: String(image.id), readId: read.id as number };
 }
 
+async function detectionEnded(imageId: string, timeoutMs = 40_000) {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    const r = await tech.json<{ status: string }>(`/api/images/${imageId}/candidates`);
+    if (r.body.status === 'done' || r.body.status === 'failed') return;
+    if (Date.now() > until) throw new Error(`image ${imageId} still ${r.body.status} after ${timeoutMs} ms`);
+    await new Promise((res) => setTimeout(res, 150));
+  }
+}
+
 const skip = (id: string, imageId: string, over: Record<string, unknown> = {}, baseVersion?: number) => ({
   entity: 'skip',
   opId: uuid(),
@@ -120,6 +130,9 @@ describe('skipped candidates', () => {
     const readerId = (await testDb()('users').where({ email: USERS.reader }).first('id')).id;
     const first = await testDb()('reads').where({ id: readId }).first();
     const [secondId] = await testDb()('reads').insert({ ...first, id: undefined, kind: 'second', reader_id: readerId, status: 'open', started_at: new Date(), submitted_at: null });
+    // Detection runs beside this test; compare the two payloads once the image's job has ended,
+    // so both see the same state of it.
+    await detectionEnded(imageId);
     const own = await tech.json(`/api/reads/${readId}`);
     const theirs = await reader.json(`/api/reads/${secondId}`);
     const looking = await vet.json(`/api/reads/${readId}`);
