@@ -1,8 +1,13 @@
 // Serves the app: Next's own request handler behind a plain Node HTTP server. Next gives route
 // handlers no way to learn the socket's address (its x-forwarded-for is whatever the client sent,
 // when it sent one), and the sign-in limits key on that address, so this server passes it on in
-// a header of its own that no client can set. Usage: node server.mjs [--dev]  (HOST, PORT)
+// a header of its own that no client can set. It also runs the instance's worker process
+// (candidate detection and report PDFs, scripts/workers.ts), so that their computing never holds
+// up a request. Usage: node server.mjs [--dev]  (HOST, PORT; CANDIDATE_WORKER=0 and
+// REPORT_PDF_WORKER=0 leave the worker process out)
+import { fork } from 'node:child_process';
 import { createServer } from 'node:http';
+import { fileURLToPath } from 'node:url';
 
 const dev = process.argv.includes('--dev');
 process.env.NODE_ENV ??= dev ? 'development' : 'production';
@@ -30,6 +35,34 @@ server.headersTimeout = 66_000;
 if (dev) server.on('upgrade', app.getUpgradeHandler());
 server.listen(port, hostname, () => console.log(`[fieldmark] serving on http://${hostname}:${port} (${dev ? 'development' : 'production'})`));
 
-const stop = () => server.close(() => process.exit(0));
+// The worker process: restarted (after a pause) if it dies, told at once when a request queued a
+// job (lib/workers/wake.ts), stopped with the server. It exits by itself if this process dies.
+const root = fileURLToPath(new URL('.', import.meta.url));
+const wantWorkers = process.env.CANDIDATE_WORKER !== '0' || process.env.REPORT_PDF_WORKER !== '0';
+let workers = null;
+let stopping = false;
+function startWorkers() {
+  workers = fork(`${root}scripts/workers.ts`, [], {
+    cwd: root,
+    execArgv: ['--import', 'tsx'],
+    env: { ...process.env, FIELDMARK_INSTANCE: String(process.pid) },
+  });
+  workers.on('exit', (code, signal) => {
+    workers = null;
+    if (stopping) return;
+    console.warn(`[fieldmark] the worker process stopped (${signal ?? `exit ${code}`}); starting it again in 2 s`);
+    setTimeout(() => stopping || startWorkers(), 2000).unref();
+  });
+}
+process.on('fieldmark:wake-worker', (kind) => {
+  if (workers?.connected) workers.send({ wake: kind }, () => undefined);
+});
+if (wantWorkers && process.env.NEXT_PHASE !== 'phase-production-build') startWorkers();
+
+const stop = () => {
+  stopping = true;
+  workers?.kill('SIGTERM');
+  server.close(() => process.exit(0));
+};
 process.on('SIGTERM', stop);
 process.on('SIGINT', stop);

@@ -34,7 +34,7 @@ const schema = z.object({
   TRUST_PROXY: z.coerce.number().int().min(0).max(10).default(0),
   /** JSON request bodies above this are refused with 413 before they are parsed. */
   JSON_BODY_LIMIT_KB: z.coerce.number().int().min(16).max(65536).default(1024),
-  // The candidate-detection worker every instance runs (lib/candidates/app-worker.ts).
+  // The candidate-detection worker every instance's worker process runs (lib/workers/instance.ts).
   CANDIDATE_WORKER: z.enum(['0', '1']).default('1'),
   CANDIDATE_POLL_MS: z.coerce.number().int().min(50).max(600_000).default(2000),
   CANDIDATE_LEASE_MS: z.coerce.number().int().min(1000).max(3_600_000).default(120_000),

@@ -6,6 +6,7 @@ import type { CurrentUser } from '@/lib/auth/session';
 import { toSkip } from '@/db/queries/candidate-skips';
 import { getLabSettings } from '@/db/queries/settings';
 import { enqueueDetection, type JobStatus } from '@/lib/candidates/jobs';
+import { wakeWorker } from '@/lib/workers/wake';
 import type { CandidateSkip, ImageCandidateSet } from '@/lib/scoring/types';
 
 export type ImageCandidates = {
@@ -49,6 +50,7 @@ export async function rerunCandidates(actor: CurrentUser, imageId: number): Prom
     await enqueueDetection(trx, imageId, actor.id);
     await writeAudit(trx, { userId: actor.id, action: 'update', entity: 'candidates', entityId: imageId, before: before ?? null, after: { status: 'waiting', rerun: true } });
   });
+  wakeWorker('candidates');
 }
 
 /**

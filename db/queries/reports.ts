@@ -11,7 +11,7 @@ import type { CurrentUser } from '@/lib/auth/session';
 import { isStaff } from '@/lib/auth/roles';
 import { contentOfSnapshot, type ReportContent } from '@/lib/reports/draft';
 import { enqueuePdf, sha256Hex } from '@/lib/reports/pdf-jobs';
-import { wakeReportPdfWorker } from '@/lib/reports/pdf-worker-app';
+import { wakeWorker } from '@/lib/workers/wake';
 import type { Readiness } from '@/lib/reports/readiness';
 import { markSuperseded, parseReportSnapshot, type ReportAmendmentLink, type ReportSnapshot } from '@/lib/reports/snapshot';
 import { pdfStateOf, reportStatusOf, type PdfState, type ReportStatus } from '@/lib/reports/status';
@@ -234,7 +234,7 @@ export async function signReport(actor: CurrentUser, collectionId: number, body:
   await signInSucceeded(actor.email, address);
   const text = body.remarks !== undefined || body.interpretation !== undefined ? { remarks: body.remarks ?? null, interpretation: body.interpretation ?? null } : undefined;
   const signed = await db.transaction((trx) => signReportTx(trx, { collectionId, signer: { id: actor.id, name: actor.name }, at: new Date(), text }));
-  wakeReportPdfWorker();
+  wakeWorker('report-pdf');
   return getReport(actor, signed.reportId);
 }
 
@@ -271,7 +271,7 @@ export async function retryReportPdf(actor: CurrentUser, reportId: number): Prom
     await enqueuePdf(trx, reportId);
     await writeAudit(trx, { userId: actor.id, action: 'retry_pdf', entity: 'report', entityId: reportId, before: { status: r.status ?? null } });
   });
-  wakeReportPdfWorker();
+  wakeWorker('report-pdf');
   return (await getReport(actor, reportId)).pdf;
 }
 

@@ -1,11 +1,12 @@
 // The detection worker: takes due jobs from the queue (jobs.ts), reads the image's
-// original from object storage, finds its candidates and stores them. Every app instance
-// runs one (instrumentation.ts); any number may run at once, since a job is taken by one
-// at a time. Its database and storage come as arguments, so tests can run several.
+// original from object storage, finds its candidates and stores them. Every app instance's
+// worker process runs one (lib/workers/process.ts); any number may run at once, since a job is
+// taken by one at a time. Its database and storage come as arguments, so tests can run several.
 import type { Knex } from 'knex';
 import { mergeLabSettings } from '@/lib/settings/lab-settings';
 import { detectCandidates, type DetectOptions, type DetectResult } from './detect';
-import { claimJob, completeJob, failJob, JOB_DEFAULTS, type JobOptions } from './jobs';
+import { errorText, startJobLoop, type RunningJobLoop } from '@/lib/jobs/queue';
+import { completeJob, detectionQueue, JOB_DEFAULTS, type JobOptions } from './jobs';
 
 export interface WorkerDeps {
   db: Knex;
@@ -24,15 +25,15 @@ export type Outcome = { imageId: number; outcome: 'done' | 'retry' | 'failed' | 
 /** Takes and runs one due job; null when none is due. */
 export async function processNextJob(deps: WorkerDeps): Promise<Outcome | null> {
   const opts = { ...JOB_DEFAULTS, ...deps.options };
-  const job = await claimJob(deps.db, deps.name, opts);
+  const job = await detectionQueue.claim(deps.db, deps.name, opts);
   if (!job) return null;
   const fail = async (reason: string, final = false): Promise<Outcome> => {
-    const outcome = await failJob(deps.db, job, reason, opts, final);
-    deps.log?.(`image ${job.imageId}: ${reason} (${outcome})`);
-    return { imageId: job.imageId, outcome };
+    const outcome = await detectionQueue.fail(deps.db, job, reason, opts, final);
+    deps.log?.(`image ${job.id}: ${reason} (${outcome})`);
+    return { imageId: job.id, outcome };
   };
 
-  const image = await deps.db('field_images').where({ id: job.imageId }).first('original_key', 'microns_per_pixel');
+  const image = await deps.db('field_images').where({ id: job.id }).first('original_key', 'microns_per_pixel');
   if (!image) return fail('The field image no longer exists.', true);
   let scale = Number(image.microns_per_pixel);
   let scaleSource: 'image' | 'lab setting' = 'image';
@@ -55,52 +56,12 @@ export async function processNextJob(deps: WorkerDeps): Promise<Outcome | null> 
     return fail(`The image could not be analysed: ${errorText(err)}.`);
   }
   const stored = await completeJob(deps.db, job, result);
-  return { imageId: job.imageId, outcome: stored ? 'done' : 'lost' };
+  return { imageId: job.id, outcome: stored ? 'done' : 'lost' };
 }
 
-/** A short, single-line reason; OpenCV's own errors are numbers, so say which. */
-function errorText(err: unknown): string {
-  if (typeof err === 'number') return `image library error ${err}`;
-  const text = err instanceof Error ? err.message : String(err);
-  return text.replace(/\s+/g, ' ').slice(0, 300) || 'unknown error';
-}
+export type RunningWorker = RunningJobLoop;
 
-export interface RunningWorker {
-  /** Finishes the job in hand (if any) and stops. */
-  stop(): Promise<void>;
-}
-
-/**
- * Runs jobs one after another while there are any, and looks again every `pollMs` when
- * there are none. An error of the database (not of a job) is logged and the loop goes on.
- */
+/** Runs jobs one after another while there are any, and looks again every `pollMs` (or when woken) when there are none. */
 export function startWorker(deps: WorkerDeps & { pollMs: number }): RunningWorker {
-  let stopped = false;
-  let timer: NodeJS.Timeout | undefined;
-  let wake: (() => void) | undefined;
-  const loop = (async () => {
-    while (!stopped) {
-      let worked = false;
-      try {
-        worked = (await processNextJob(deps)) !== null;
-      } catch (err) {
-        deps.log?.(`worker error: ${errorText(err)}`);
-      }
-      if (worked || stopped) continue;
-      await new Promise<void>((resolve) => {
-        wake = resolve;
-        // A little jitter, so instances started together do not poll in step.
-        timer = setTimeout(resolve, deps.pollMs * (0.8 + 0.4 * Math.random()));
-        timer.unref?.();
-      });
-    }
-  })();
-  return {
-    async stop() {
-      stopped = true;
-      if (timer) clearTimeout(timer);
-      wake?.();
-      await loop;
-    },
-  };
+  return startJobLoop(async () => (await processNextJob(deps)) !== null, deps.pollMs, deps.log);
 }

@@ -9,6 +9,7 @@ import { createReadStream } from 'node:fs';
 import type { Readable } from 'node:stream';
 import type { Knex } from 'knex';
 import { enqueueDetection } from '../candidates/jobs';
+import { wakeWorker } from '../workers/wake';
 import { ingestImage } from './ingest';
 import { sanitizeFileName, type ImageLimits } from './inspect';
 
@@ -90,6 +91,7 @@ export async function storeFieldImage(db: Knex, store: ObjectStore, input: Store
       await enqueueDetection(trx, id);
       return id as number;
     });
+    wakeWorker('candidates');
     return { ok: true, id, duplicate: false };
   } catch (err) {
     await cleanUp();

@@ -157,7 +157,7 @@ describe('candidates of a field image', () => {
     const recovered = await settled(s, dead, ['done']);
     expect(recovered.attempts).toBe(2);
     // The dead instance's late result is refused: its lease token is no longer the job's.
-    expect(await completeJob(db, { imageId: dead, token: '00000000-0000-4000-8000-000000000000', attempts: 1 }, { candidates: [], method: 'late', params: {}, ms: 1 })).toBe(false);
+    expect(await completeJob(db, { id: dead, token: '00000000-0000-4000-8000-000000000000', attempts: 1 }, { candidates: [], method: 'late', params: {}, ms: 1 })).toBe(false);
     expect((await s.json<Answer>(`/api/images/${dead}/candidates`)).body).toMatchObject({ status: 'done', candidates: recovered.candidates });
   });
 });

@@ -90,9 +90,7 @@ describe('field images', () => {
     expect(w.body.image.fileName).toBe('slide 3.png');
     const keys = await objectKeys(`collections/${id}/`);
     for (const k of keys) expect(k).not.toMatch(/\.\.|passwd|\\/);
-    // Longer than the default: cell detection for the images earlier tests uploaded runs in the
-    // app's own process and shares its CPU with these uploads (see DEVELOPERS.md, workers).
-  }, 90_000);
+  });
 
   it('orders, scales and deletes images; refuses deleting an image with marks', async () => {
     const s = await signedIn(USERS.tech);

@@ -110,7 +110,7 @@ describe('the report-PDF queue', () => {
   it('gives a job whose lease ran out to another worker; the first writes nothing', async () => {
     const id = await queuedVersion();
     const slow = await claimPdfJob(db, 'slow', { leaseMs: 50 });
-    expect(slow).toMatchObject({ reportId: id, attempts: 1 });
+    expect(slow).toMatchObject({ id, attempts: 1 });
     await new Promise((r) => setTimeout(r, 120));
     expect(await processNextPdfJob(deps({ name: 'second' }))).toEqual({ reportId: id, outcome: 'done' });
     const row = await db('report_versions').where({ id }).first('pdf_key', 'pdf_sha256');
