@@ -1,3 +1,4 @@
+// @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own presses)
 // The cell walk in the running app: from a class key pressed on a candidate until the view is
 // centred on the next candidate and drawn. Headless Chromium (Debian's) through Playwright, a
 // read of a generated 12-megapixel field (4000 × 3000, 200 cells) whose candidates the app's
@@ -16,7 +17,7 @@ import knexFactory from 'knex';
 import { knexConfig } from '../../knexfile';
 import { generateField } from '@/lib/synthetic/generate-field';
 import { APP_URL, signedIn, USERS, type Session } from '../integration/support/http';
-import { arg, signedInPage, benchRead, ok, quantile, removeBenchReads, type BenchRead } from './support';
+import { arg, signedInPage, benchRead, emitFigures, ok, quantile, removeBenchReads, type BenchRead } from './support';
 
 const TARGET_MS = 50;
 
@@ -131,6 +132,9 @@ async function main() {
     console.log(`| arrow key panning the view (baseline) | ${pan.length} | ${f(quantile(pan, 0.5))} | ${f(quantile(pan, 0.95))} | — |`);
     const p95 = quantile(walk, 0.95);
     console.log(`\np95 key press → next candidate centred and drawn < ${TARGET_MS} ms: ${p95 < TARGET_MS ? 'PASS' : 'FAIL'} (${f(p95)} ms)`);
+    emitFigures('walk', [
+      { name: 'cell walk: class key to next candidate centred and drawn, p95', unit: 'ms', value: p95, baseline: { name: 'arrow-key pan', value: quantile(pan, 0.95) }, better: 'lower', target: { on: 'value', max: TARGET_MS }, details: { p50_ms: quantile(walk, 0.5), presses: walk.length } },
+    ]);
   } finally {
     await browser.close();
     const db = knexFactory(knexConfig());
