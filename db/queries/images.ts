@@ -143,11 +143,15 @@ async function bodyToTempFile(body: ReadableStream<Uint8Array> | null, maxBytes:
   const dir = await mkdtemp(join(tmpdir(), 'fieldmark-upload-'));
   const path = join(dir, 'upload');
   let bytes = 0;
+  const tooLarge = () => new ApiError(413, 'too_large', `${name}: the file is larger than the ${Math.round(maxBytes / 1048576)} MB limit.`);
+  // Past the limit the rest is read and dropped rather than the stream cancelled: a cancelled
+  // request body leaves the connection stalled, and the client's next request on it would hang.
+  // Only a body far past the limit (4 ×) is cut off.
   const limiter = new Transform({
     transform(chunk: Buffer, _enc, done) {
       bytes += chunk.length;
-      if (bytes > maxBytes) done(new ApiError(413, 'too_large', `${name}: the file is larger than the ${Math.round(maxBytes / 1048576)} MB limit.`));
-      else done(null, chunk);
+      if (bytes > 4 * maxBytes) done(tooLarge());
+      else done(null, bytes > maxBytes ? undefined : chunk);
     },
   });
   try {
@@ -156,6 +160,10 @@ async function bodyToTempFile(body: ReadableStream<Uint8Array> | null, maxBytes:
     await rm(dir, { recursive: true, force: true });
     if (err instanceof ApiError) throw err;
     throw new ApiError(400, 'upload_interrupted', `${name}: the upload was interrupted before the whole file arrived. Try again.`);
+  }
+  if (bytes > maxBytes) {
+    await rm(dir, { recursive: true, force: true });
+    throw tooLarge();
   }
   return { dir, path, bytes };
 }

@@ -37,7 +37,7 @@ export class BodyTooLarge extends Error {
  */
 export async function readLimitedBody(body: ReadableStream<Uint8Array> | null, contentLength: string | null, limitBytes: number): Promise<Uint8Array> {
   if (contentLength !== null && Number(contentLength) > limitBytes) {
-    await body?.cancel().catch(() => {});
+    if (body) await discardRest(body.getReader(), Number(contentLength) <= 4 * limitBytes ? Infinity : 0);
     throw new BodyTooLarge(limitBytes);
   }
   if (!body) return new Uint8Array(0);
@@ -49,7 +49,7 @@ export async function readLimitedBody(body: ReadableStream<Uint8Array> | null, c
     if (done) break;
     size += value.byteLength;
     if (size > limitBytes) {
-      await reader.cancel().catch(() => {});
+      await discardRest(reader, 3 * limitBytes);
       throw new BodyTooLarge(limitBytes);
     }
     chunks.push(value);
@@ -61,6 +61,25 @@ export async function readLimitedBody(body: ReadableStream<Uint8Array> | null, c
     at += c.byteLength;
   }
   return out;
+}
+
+/**
+ * Reads the rest of a refused body and drops it, up to `maxBytes` more (then cancels). A body
+ * cancelled half-read leaves the connection stalled under Next's server, and the client's next
+ * request on it hangs until the keep-alive timeout; one read to its end leaves it usable.
+ */
+export async function discardRest(reader: ReadableStreamDefaultReader<Uint8Array>, maxBytes: number): Promise<void> {
+  let more = 0;
+  try {
+    while (more <= maxBytes) {
+      const { done, value } = await reader.read();
+      if (done) return;
+      more += value.byteLength;
+    }
+    await reader.cancel();
+  } catch {
+    // The client went away: nothing left to read.
+  }
 }
 
 /** A validation message as the end of a sentence: exactly one full stop, whatever the schema's message ended with. */
