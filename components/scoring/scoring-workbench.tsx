@@ -7,6 +7,7 @@ import { useLabTimeZone } from '@/components/time/lab-clock';
 import { fmtDateTime, formatPct } from '@/lib/format';
 import type { MarkClass } from '@/lib/class-sets/schema';
 import { useLatest } from '@/lib/hooks/use-latest';
+import { useFillHeight } from '@/lib/hooks/use-fill-height';
 import { syncStatusText } from '@/lib/hooks/use-mark-sync';
 import { useCellWalk } from '@/lib/hooks/use-cell-walk';
 import { useReadMarks, type MarkMapState } from '@/lib/hooks/use-read-marks';
@@ -328,6 +329,9 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
     if (!id) setTagsOpen(false);
   }, []);
 
+  // On a laptop the canvas takes the window's height left below the banners and bars.
+  const fillHeight = useFillHeight<HTMLElement>();
+
   const statusTone = !sync.status.online || sync.status.lastError ? 'text-warn' : sync.status.waiting > 0 ? 'text-ink-soft' : 'text-ok';
 
   return (
@@ -396,7 +400,8 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
             role="region"
             aria-label={imageLabel}
             aria-roledescription="scoring canvas"
-            className="h-[58vh] min-h-[340px] overflow-hidden rounded-lg border border-line lg:h-[calc(100vh-15rem)]"
+            ref={fillHeight}
+            className="h-[58vh] min-h-[340px] overflow-hidden rounded-lg border border-line"
           >
             {image ? (
               <FieldCanvas

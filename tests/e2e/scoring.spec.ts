@@ -308,3 +308,22 @@ test('submitting locks the read', async ({ page }) => {
   });
   expect(refused.status()).toBe(409);
 });
+
+test('the canvas fills the window below the bars on a laptop, and follows a change of window size', async ({ page }) => {
+  const readId = await newRead(page);
+  await openRead(page, readId);
+  const region = page.getByRole('region', { name: 'Field image 1 of 1' });
+  for (const size of [{ width: 1366, height: 900 }, { width: 1280, height: 720 }, { width: 1366, height: 820 }]) {
+    await page.setViewportSize(size);
+    // The whole canvas in the window (at the top of the page), with at most a small gap below it.
+    await expect
+      .poll(async () => {
+        const box = (await region.boundingBox())!;
+        const bottom = box.y + box.height;
+        return bottom <= size.height && bottom >= size.height - 40 ? 'fits' : `bottom ${bottom} of ${size.height}`;
+      })
+      .toBe('fits');
+    const stage = (await page.getByTestId('field-canvas').boundingBox())!;
+    expect(stage.y + stage.height).toBeLessThanOrEqual(size.height);
+  }
+});
