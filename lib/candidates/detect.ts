@@ -333,17 +333,42 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     const dist = keep(new cv.Mat());
     const level = constant(erosionRadiusPx, bin);
     cv.distanceTransform(bin, dist, cv.DIST_L2, cv.DIST_MASK_5);
-    const opened = keep(new cv.Mat());
-    cv.compare(dist, level, opened, cv.CMP_GT); // the closed, then eroded mask
-    const cross = keep(cv.getStructuringElement(cv.MORPH_CROSS, new cv.Size(3, 3)));
-    const square = keep(cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3)));
-    for (let k = 0; k < dilateSteps; k++) {
-      cv.dilate(opened, opened, cross);
-      cv.dilate(opened, opened, square);
-    }
+    const eroded = keep(new cv.Mat());
+    cv.compare(dist, level, eroded, cv.CMP_GT); // the closed, then eroded mask
     free(bin);
     free(level);
     free(dist);
+    // The dilation, piece by piece: the eroded mask is a few hundredths of the image, and a
+    // dilation only reaches its radius (2 px per step) beyond each piece's bounding box. So
+    // each outer contour's box, grown by that radius, is dilated on its own and laid into
+    // the opened mask: the union of the pieces' dilations, which is the dilation of the whole.
+    const cross = keep(cv.getStructuringElement(cv.MORPH_CROSS, new cv.Size(3, 3)));
+    const square = keep(cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3)));
+    const opened = keep(cv.Mat.zeros(h, w, cv.CV_8UC1));
+    const pieces = keep(new cv.MatVector());
+    const pieceTree = keep(new cv.Mat());
+    cv.findContours(eroded, pieces, pieceTree, cv.RETR_EXTERNAL, cv.CHAIN_APPROX_SIMPLE);
+    const reach = 2 * dilateSteps;
+    for (let i = 0; i < pieces.size(); i++) {
+      const box = cv.boundingRect(pieces.get(i));
+      const x = Math.max(0, box.x - reach);
+      const y = Math.max(0, box.y - reach);
+      const grown = new cv.Rect(x, y, Math.min(w, box.x + box.width + reach) - x, Math.min(h, box.y + box.height + reach) - y);
+      withMats((own) => {
+        const piece = own(new cv.Mat());
+        cv.dilate(own(eroded.roi(grown)), piece, cross);
+        cv.dilate(piece, piece, square);
+        for (let k = 1; k < dilateSteps; k++) {
+          cv.dilate(piece, piece, cross);
+          cv.dilate(piece, piece, square);
+        }
+        const target = own(opened.roi(grown));
+        cv.bitwise_or(target, piece, target);
+      });
+    }
+    free(pieces);
+    free(pieceTree);
+    free(eroded);
     await breathe();
     // Connected components (8-connected) by their outer contours: with the opened mask mostly
     // background, tracing borders is several times cheaper here than labelling every pixel.
