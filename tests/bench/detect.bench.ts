@@ -14,10 +14,11 @@
 //   (once per process, ~0.3–1 s, printed apart).
 // - The target (≤ 3 × the decode, from the issue) is on the wall clock, p50 and p95 each
 //   against the decode's p50 and p95, in every group of images; the figures handed to npm run
-//   bench are the wall clock over all images (named as before, so --compare pairs them). CPU time is printed beside it for information
-//   only: this process's user + system time over the case (sharp's worker threads and V8's
-//   garbage collector included). On a machine busy with other work the wall clock stretches
-//   with the queue for the cores; the CPU time is closer to the work each case itself does.
+//   bench are the wall clock over all images (the p50 one named as before, so --compare pairs
+//   it). CPU time is printed beside it for information only: this process's user + system
+//   time over the case (sharp's worker threads and V8's garbage collector included). On a
+//   machine busy with other work the wall clock stretches with the queue for the cores; the
+//   CPU time is closer to the work each case itself does.
 // - Peak RSS: each case also runs alone in a child process over every image, which then
 //   reports its own RSS high-water mark (VmHWM); an idle child with sharp and OpenCV
 //   loaded gives the floor.
