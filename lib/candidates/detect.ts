@@ -324,9 +324,10 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     // The closing's erosion (by a 3 × 3 cross, the chamfer disc of radius 1) and the
     // opening's come one after the other, and eroding by two discs in turn is eroding once by
     // their sum where B(r) ⊕ B(1) = B(r + 1): true of the 5 × 5 chamfer mask for r = 2.25, so
-    // there the dilated mask is eroded once (erodeOnce). The opening's dilation is by an octagon of radius 2 per step (a
-    // 3 × 3 cross, then a 3 × 3 square), close to the disc and several times cheaper than a
-    // disc kernel or a distance transform of the (mostly foreground) inverse.
+    // there the dilated mask is eroded once (erodeOnce). The opening's dilation is by an
+    // octagon of radius 2 per step (a 3 × 3 cross, then a 3 × 3 square), close to the disc and
+    // several times cheaper than a disc kernel or a distance transform of the (mostly
+    // foreground) inverse.
     const closingKernel = keep(cv.getStructuringElement(cv.MORPH_ELLIPSE, new cv.Size(closingKernelPx, closingKernelPx)));
     cv.dilate(bin, bin, closingKernel);
     if (!erodeOnce) cv.erode(bin, bin, closingKernel);
