@@ -1,6 +1,6 @@
 // @bench-runs 1 (npm run bench: its figures are already medians / quantiles of its own rounds)
 // Candidate detection benchmark: detectCandidates against sharp decoding the same image
-// alone, in the same run. Run: npx tsx tests/bench/detect.bench.ts [--count N] [--rounds R]
+// alone, in the same run. Run: npx tsx tests/bench/detect.bench.ts [--count N] [--rounds R (5)]
 //
 // - Images: synthetic 12-megapixel fields (4000 × 3000, 0.25 µm/px, 110 cells): JPEG with
 //   bright heads on a dark stained field, JPEG with dark heads on a light phase-contrast
@@ -12,9 +12,13 @@
 // - Timing alternates which case runs first for each image and round; sharp's operation
 //   cache is off so repeated runs cannot reuse results. OpenCV is loaded before timing
 //   (once per process, ~0.3–1 s, printed apart).
-// - CPU time beside the wall clock: this process's user + system time over the case (sharp's
-//   worker threads included). On a machine busy with other work the wall clock stretches
-//   with the queue for the cores; the CPU time is the work each case itself does.
+// - The target (≤ 3 × the decode, from the issue) is on the wall clock, p50 and p95 each
+//   against the decode's p50 and p95, in every group of images; the figures handed to npm run
+//   bench are the wall clock over all images (the p50 one named as before, so --compare pairs
+//   it). CPU time is printed beside it for information only: this process's user + system
+//   time over the case (sharp's worker threads and V8's garbage collector included). On a
+//   machine busy with other work the wall clock stretches with the queue for the cores; the
+//   CPU time is closer to the work each case itself does.
 // - Peak RSS: each case also runs alone in a child process over every image, which then
 //   reports its own RSS high-water mark (VmHWM); an idle child with sharp and OpenCV
 //   loaded gives the floor.
@@ -85,7 +89,7 @@ async function main(): Promise<void> {
   }
 
   const count = arg('count', 6);
-  const rounds = arg('rounds', 3);
+  const rounds = arg('rounds', 5);
   sharp.cache(false);
   const dir = await mkdtemp(join(tmpdir(), 'fieldmark-detect-bench-'));
   try {
@@ -145,10 +149,12 @@ async function main(): Promise<void> {
         `${rounds} rounds, generated in ${(genMs / 1000).toFixed(1)} s; node ${process.version}, sharp ${sharp.versions.sharp}, OpenCV loaded in ${loadMs.toFixed(0)} ms`,
     );
     lines.push('');
-    lines.push('| case | images | p50 ms/image | p95 ms/image | ratio vs sharp decode (p50) | ratio (p95) | p50 CPU ms/image | CPU ratio (p50) | candidates / cells drawn | peak RSS MB, alone in a child |');
+    lines.push(
+      '| case | images | wall p50 ms/image | wall p95 ms/image | wall ratio vs sharp decode (p50) | wall ratio (p95) | CPU p50 ms/image (information) | CPU ratio (p50) | candidates / cells drawn | peak RSS MB, alone in a child |',
+    );
     lines.push('|---|---|---|---|---|---|---|---|---|---|');
     let pass = true;
-    let cpuPass = true;
+    let worst = 0;
     for (const g of groups) {
       const base = times['sharp decode'][g];
       const cpuBase = cpuTimes['sharp decode'][g];
@@ -157,8 +163,10 @@ async function main(): Promise<void> {
         const p50 = quantile(xs, 0.5) / quantile(base, 0.5);
         const p95 = quantile(xs, 0.95) / quantile(base, 0.95);
         const cpuRatio = quantile(cpuTimes[name][g], 0.5) / quantile(cpuBase, 0.5);
-        if (name === 'detection' && p50 > TARGET) pass = false;
-        if (name === 'detection' && cpuRatio > TARGET) cpuPass = false;
+        if (name === 'detection') {
+          worst = Math.max(worst, p50, p95);
+          if (p50 > TARGET || p95 > TARGET) pass = false;
+        }
         const share = name === 'detection' ? (g === 'all' ? Object.values(found).flat() : found[g]) : undefined;
         lines.push(
           `| ${name}, ${g === 'all' ? 'all images' : g} | ${xs.length / rounds} | ${quantile(xs, 0.5).toFixed(0)} | ${quantile(xs, 0.95).toFixed(0)} | ${p50.toFixed(2)} | ${p95.toFixed(2)} | ` +
@@ -169,10 +177,16 @@ async function main(): Promise<void> {
     }
     lines.push('');
     lines.push(`Idle child with sharp and OpenCV loaded: ${mb(idle)} MB peak RSS.`);
-    lines.push(`detection p50 ≤ ${TARGET} × sharp decode p50 (every group), wall clock: ${pass ? 'PASS' : 'FAIL'}; CPU time: ${cpuPass ? 'PASS' : 'FAIL'} (load average ${loadavg().map((v) => v.toFixed(1)).join(' ')})`);
+    lines.push(
+      `Target, on the wall clock: detection p50 ≤ ${TARGET} × sharp decode p50 and p95 ≤ ${TARGET} × its p95, in every group: ${pass ? 'PASS' : 'FAIL'} ` +
+        `(highest ratio ${worst.toFixed(2)}; load average ${loadavg().map((v) => v.toFixed(1)).join(' ')}). The CPU columns are not part of the target.`,
+    );
     console.log(lines.join('\n'));
+    const cpuAll = quantile(cpuTimes.detection.all, 0.5) / quantile(cpuTimes['sharp decode'].all, 0.5);
+    const details = { worst_group_ratio: worst, cpu_ratio_p50: cpuAll, peak_rss_mb: peaks.detection / 2 ** 20 };
     emitFigures('detect', [
-      { name: 'candidate detection, p50 per 12-MP image', unit: 'ms', value: quantile(times.detection.all, 0.5), baseline: { name: 'sharp decode', value: quantile(times['sharp decode'].all, 0.5) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details: { p95_ms: quantile(times.detection.all, 0.95), peak_rss_mb: peaks.detection / 2 ** 20 } },
+      { name: 'candidate detection, p50 per 12-MP image', unit: 'ms', value: quantile(times.detection.all, 0.5), baseline: { name: 'sharp decode p50', value: quantile(times['sharp decode'].all, 0.5) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details },
+      { name: 'candidate detection, p95 per 12-MP image', unit: 'ms', value: quantile(times.detection.all, 0.95), baseline: { name: 'sharp decode p95', value: quantile(times['sharp decode'].all, 0.95) }, better: 'lower', target: { on: 'ratio', max: TARGET }, details },
     ]);
   } finally {
     await rm(dir, { recursive: true, force: true });
