@@ -14,6 +14,7 @@ export const WalkBar = memo(function WalkBar({
   openOnImage,
   openInRead,
   imageStatus,
+  imageSkipped,
   searching,
   onToggleShown,
   onToggleWalk,
@@ -26,6 +27,8 @@ export const WalkBar = memo(function WalkBar({
   openInRead: number;
   /** The search's state on this image. */
   imageStatus: 'waiting' | 'running' | 'done' | 'failed' | null;
+  /** Why a done search gave no candidates on this image (scale too coarse…), in words. */
+  imageSkipped?: string;
   /** Images of the read whose search is not done yet. */
   searching: number;
   onToggleShown(): void;
@@ -37,7 +40,9 @@ export const WalkBar = memo(function WalkBar({
       ? 'Finding cells on this image…'
       : imageStatus === 'failed'
         ? 'No found cells on this image (the search failed; see the collection’s images).'
-        : `${openOnImage} found cell${openOnImage === 1 ? '' : 's'} not yet judged on this image`;
+        : imageSkipped
+          ? imageSkipped
+          : `${openOnImage} found cell${openOnImage === 1 ? '' : 's'} not yet judged on this image`;
   return (
     <div className="space-y-1 text-sm" role="group" aria-label="Found cells">
       <div className="flex flex-wrap items-center gap-x-3 gap-y-1.5">
