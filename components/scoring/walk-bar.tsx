@@ -40,9 +40,7 @@ export const WalkBar = memo(function WalkBar({
       ? 'Finding cells on this image…'
       : imageStatus === 'failed'
         ? 'No found cells on this image (the search failed; see the collection’s images).'
-        : imageSkipped
-          ? imageSkipped
-          : `${openOnImage} found cell${openOnImage === 1 ? '' : 's'} not yet judged on this image`;
+        : `${openOnImage} found cell${openOnImage === 1 ? '' : 's'} not yet judged on this image`;
   return (
     <div className="space-y-1 text-sm" role="group" aria-label="Found cells">
       <div className="flex flex-wrap items-center gap-x-3 gap-y-1.5">
@@ -66,7 +64,9 @@ export const WalkBar = memo(function WalkBar({
       {/* Its own line, so the canvas does not move when the walk's buttons come and go. */}
       {shown && canEdit && (
         <p className="text-ink-soft tabular-nums" data-testid="candidate-status">
-          {imageText} · {openInRead} in the read{searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.
+          {imageStatus === 'done' && imageSkipped
+            ? `${imageSkipped} Elsewhere in the read: ${openInRead} found cell${openInRead === 1 ? '' : 's'} not yet judged${searching ? `, finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}.`
+            : `${imageText} · ${openInRead} in the read${searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.`}
         </p>
       )}
       {/* Someone else's read, or a submitted one: its skips are its reader's alone, so no count of what is left. */}
