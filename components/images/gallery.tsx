@@ -109,7 +109,9 @@ function markedText(img: FieldImage): string {
 function CandidateState({ image, onRerun }: { image: FieldImage; onRerun: () => void }) {
   const c = image.candidates;
   const text =
-    c.status === 'done'
+    c.status === 'done' && c.skipped
+      ? c.skipped
+      : c.status === 'done'
       ? `Cells found: ${c.count} candidate${c.count === 1 ? '' : 's'}`
       : c.status === 'running'
         ? 'Finding cells…'

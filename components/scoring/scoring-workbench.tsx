@@ -385,6 +385,7 @@ export function ScoringWorkbench({ initial }: { initial: ReadPayload }) {
             openOnImage={counts.perImage[imageIndex] ?? 0}
             openInRead={counts.total}
             imageStatus={imageWalk?.status ?? null}
+            imageSkipped={image ? candidates[String(image.id)]?.skipped : undefined}
             searching={searching}
             onToggleShown={onToggleCandidates}
             onToggleWalk={onToggleWalk}

@@ -14,6 +14,7 @@ export const WalkBar = memo(function WalkBar({
   openOnImage,
   openInRead,
   imageStatus,
+  imageSkipped,
   searching,
   onToggleShown,
   onToggleWalk,
@@ -26,6 +27,8 @@ export const WalkBar = memo(function WalkBar({
   openInRead: number;
   /** The search's state on this image. */
   imageStatus: 'waiting' | 'running' | 'done' | 'failed' | null;
+  /** Why a done search gave no candidates on this image (scale too coarse…), in words. */
+  imageSkipped?: string;
   /** Images of the read whose search is not done yet. */
   searching: number;
   onToggleShown(): void;
@@ -61,7 +64,9 @@ export const WalkBar = memo(function WalkBar({
       {/* Its own line, so the canvas does not move when the walk's buttons come and go. */}
       {shown && canEdit && (
         <p className="text-ink-soft tabular-nums" data-testid="candidate-status">
-          {imageText} · {openInRead} in the read{searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.
+          {imageStatus === 'done' && imageSkipped
+            ? `${imageSkipped} Elsewhere in the read: ${openInRead} found cell${openInRead === 1 ? '' : 's'} not yet judged${searching ? `, finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}.`
+            : `${imageText} · ${openInRead} in the read${searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.`}
         </p>
       )}
       {/* Someone else's read, or a submitted one: its skips are its reader's alone, so no count of what is left. */}

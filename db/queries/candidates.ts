@@ -5,7 +5,8 @@ import { notFound } from '@/lib/api/errors';
 import type { CurrentUser } from '@/lib/auth/session';
 import { toSkip } from '@/db/queries/candidate-skips';
 import { getLabSettings } from '@/db/queries/settings';
-import { enqueueDetection, type JobStatus } from '@/lib/candidates/jobs';
+import { enqueueDetection, parseParams, type JobStatus } from '@/lib/candidates/jobs';
+import { skippedText } from '@/lib/candidates/skipped';
 import { wakeWorker } from '@/lib/workers/wake';
 import type { CandidateSkip, ImageCandidateSet } from '@/lib/scoring/types';
 
@@ -17,6 +18,8 @@ export type ImageCandidates = {
   ms: number | null;
   /** Why the last attempt failed (also while a retry waits). */
   error: string | null;
+  /** A done search that gave no candidates on purpose, in a technician's words (lib/candidates/skipped.ts). */
+  skipped: string | null;
   attempts: number;
 };
 
@@ -26,15 +29,17 @@ export async function getImageCandidates(imageId: number): Promise<ImageCandidat
   if (!image) throw notFound('The field image');
   const job = await db('candidate_jobs').where({ image_id: imageId }).first();
   if (!job) {
-    return { status: 'failed', candidates: [], method: null, params: null, ms: null, error: 'Finding cells was never queued for this image; ask for it again.', attempts: 0 };
+    return { status: 'failed', candidates: [], method: null, params: null, ms: null, error: 'Finding cells was never queued for this image; ask for it again.', skipped: null, attempts: 0 };
   }
   const done = job.status === 'done';
+  const params = done ? parseParams(job.params) : null;
   const candidates = done ? await db('candidates').where({ image_id: imageId }).orderBy('id').select('x', 'y', 'score') : [];
   return {
     status: job.status,
     candidates: candidates.map((c) => ({ x: Number(c.x), y: Number(c.y), score: Number(c.score) })),
     method: done ? job.method : null,
-    params: done ? (typeof job.params === 'string' ? JSON.parse(job.params) : job.params) : null,
+    params,
+    skipped: skippedText(params),
     ms: done ? job.ms : null,
     error: job.error ?? null,
     attempts: job.attempts,
@@ -64,7 +69,7 @@ export async function readWalkData(
 ): Promise<{ candidates: Record<string, ImageCandidateSet>; skips: CandidateSkip[]; candidatesShown: boolean }> {
   const own = user.id === read.readerId;
   const [jobs, points, skips, settings] = await Promise.all([
-    imageIds.length ? db('candidate_jobs').whereIn('image_id', imageIds).select('image_id', 'status') : [],
+    imageIds.length ? db('candidate_jobs').whereIn('image_id', imageIds).select('image_id', 'status', 'params') : [],
     imageIds.length
       ? db('candidates as c').join('candidate_jobs as j', 'j.image_id', 'c.image_id').where('j.status', 'done').whereIn('c.image_id', imageIds).orderBy('c.id').select('c.image_id', 'c.x', 'c.y', 'c.score')
       : [],
@@ -73,7 +78,10 @@ export async function readWalkData(
   ]);
   const candidates: Record<string, ImageCandidateSet> = {};
   for (const id of imageIds) candidates[String(id)] = { status: 'failed', points: [] };
-  for (const j of jobs) candidates[String(j.image_id)] = { status: j.status, points: [] };
+  for (const j of jobs) {
+    const skipped = j.status === 'done' ? skippedText(parseParams(j.params)) : null;
+    candidates[String(j.image_id)] = { status: j.status, points: [], ...(skipped ? { skipped } : {}) };
+  }
   for (const c of points) candidates[String(c.image_id)]?.points.push({ x: Number(c.x), y: Number(c.y), score: Number(c.score) });
   return { candidates, skips: skips.map(toSkip), candidatesShown: settings.showCandidates };
 }

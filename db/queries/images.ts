@@ -16,6 +16,8 @@ import * as storage from '@/storage/s3';
 import type { Row } from '@/db/row';
 import { READ_KINDS, type ReadKind, type ReadStatus } from '@/lib/reads/kinds';
 import { visibleReads } from '@/lib/reads/policy';
+import { parseParams } from '@/lib/candidates/jobs';
+import { skippedText } from '@/lib/candidates/skipped';
 import type { Knex } from 'knex';
 
 export type FieldImage = {
@@ -42,8 +44,11 @@ export type FieldImage = {
   marks: Record<ReadKind, number>;
   /** Some read, seen by the viewer or not, has cells marked here: the image can be neither deleted nor rescaled. */
   marked: boolean;
-  /** The search for candidate cells: its state, how many were found, why it failed. */
-  candidates: { status: 'waiting' | 'running' | 'done' | 'failed'; count: number; error: string | null };
+  /**
+   * The search for candidate cells: its state, how many were found, why it failed, and why a
+   * done search gave none on purpose (scale too coarse, an implausible result; lib/candidates/skipped.ts).
+   */
+  candidates: { status: 'waiting' | 'running' | 'done' | 'failed'; count: number; error: string | null; skipped: string | null };
   thumbUrl: string;
   displayUrl: string;
 };
@@ -67,7 +72,12 @@ function toImage(r: Row, marks: Record<ReadKind, number>, marked: boolean): Fiel
     createdAt: new Date(r.created_at).toISOString(),
     marks,
     marked,
-    candidates: { status: r.candidate_status ?? 'failed', count: Number(r.candidate_count ?? 0), error: r.candidate_status ? (r.candidate_error ?? null) : 'Finding cells was never queued for this image.' },
+    candidates: {
+      status: r.candidate_status ?? 'failed',
+      count: Number(r.candidate_count ?? 0),
+      error: r.candidate_status ? (r.candidate_error ?? null) : 'Finding cells was never queued for this image.',
+      skipped: r.candidate_status === 'done' ? skippedText(parseParams(r.candidate_params)) : null,
+    },
     thumbUrl: `/api/images/${r.id}/thumb`,
     displayUrl: `/api/images/${r.id}/display`,
   };
@@ -80,7 +90,7 @@ export async function listImages(actor: CurrentUser, collectionId: number): Prom
       .leftJoin('candidate_jobs as j', 'j.image_id', 'i.id')
       .where('i.collection_id', collectionId)
       .orderBy('i.position')
-      .select('i.*', 'u.name as uploaded_by_name', 'j.status as candidate_status', 'j.error as candidate_error')
+      .select('i.*', 'u.name as uploaded_by_name', 'j.status as candidate_status', 'j.error as candidate_error', 'j.params as candidate_params')
       .select(db.raw('(select count(*) from candidates c where c.image_id = i.id) as candidate_count')),
     db('reads').where({ collection_id: collectionId }).orderBy('id').select('id', 'kind', 'status', 'reader_id') as Promise<Row[]>,
     // Live marks per image and read, in one grouped query on the (image_id, read_id) index.

@@ -26,11 +26,15 @@ export const HEAD_WIDTH_UM = 3;
 /** The package doing the image analysis; a unit test checks it against the installed one. */
 export const OPENCV_PACKAGE = '@techstark/opencv-js@4.12.0-release.1';
 /**
+ * v3: the threshold never falls inside the background's noise (Otsu's fell there on sparse
+ * phase-contrast fields at 0.75 µm/px and coarser, giving thousands of candidates); no search
+ * below MIN_HEAD_LENGTH_PX; no candidates beyond maxCandidates. Same candidates as v2 where
+ * Otsu's threshold is above the floor (every field of the accuracy test).
  * v2 gives the same candidates as v1 wherever the two were compared (the accuracy fields, the
  * detection bench's 12-MP fields, 0.25–1 µm/px); it takes the same steps in fewer calls and
  * records erosionRadiusPx.
  */
-export const METHOD = 'flatfield-otsu-opening-components v2';
+export const METHOD = 'flatfield-otsu-opening-components v3';
 
 export type Polarity = 'bright' | 'dark';
 
@@ -53,9 +57,9 @@ export interface Candidate {
   score: number;
 }
 
-export interface DetectParams {
+/** What every result records, whether cells were searched for or not. */
+export interface BaseParams {
   library: string;
-  opencv: string;
   sharp: string;
   micronsPerPixel: number;
   scaleSource: 'image' | 'lab setting';
@@ -63,6 +67,23 @@ export interface DetectParams {
   headWidthUm: number;
   imageWidth: number;
   imageHeight: number;
+  /** A head's length in the image's pixels, and the least with which cells are searched for. */
+  headLengthPx: number;
+  minHeadLengthPx: number;
+  /** The most cells the field could hold (its area over a whole cell's footprint); more candidates are not shown. */
+  maxCandidates: number;
+  cellFootprintUm2: number;
+  /** Set when no candidates are given: why, in a developer's words. */
+  skipped?: string;
+}
+
+/** A result whose scale was too coarse to search at all: nothing but the base. */
+export interface SkippedParams extends BaseParams {
+  skipped: string;
+}
+
+export interface DetectParams extends BaseParams {
+  opencv: string;
   /** Working copy: size, scale against the image, and sharp's resampling kernel. */
   workWidth: number;
   workHeight: number;
@@ -82,7 +103,10 @@ export interface DetectParams {
   backgroundNoise: number;
   /** Flattened copy: ratioScale × image / (background + 1), inverted for dark cells. */
   ratioScale: number;
-  threshold: 'otsu';
+  /** Otsu's, raised to thresholdFloor (background + polaritySigmas × its noise) where it fell below it. */
+  threshold: 'otsu, at least the noise floor';
+  otsuValue: number;
+  thresholdFloor: number;
   thresholdValue: number;
   closingKernelPx: number;
   openingRadiusPx: number;
@@ -102,19 +126,39 @@ export interface DetectParams {
   components: number;
   /** Components that gave more than one candidate. */
   split: number;
+  /** Candidates the search gave; more than maxCandidates, and none are kept (skipped says so). */
+  found: number;
 }
 
 export interface DetectResult {
   candidates: Candidate[];
   method: string;
-  params: DetectParams;
+  params: DetectParams | SkippedParams;
   ms: number;
 }
+
+/** True when the search was not run (scale too coarse): params hold only the base. */
+export const searchSkipped = (params: DetectParams | SkippedParams): params is SkippedParams => !('polarity' in params);
 
 /** A head about this many pixels long in the working copy: enough for its shape, cheap to analyse. */
 export const WORK_HEAD_LENGTH_PX = 12;
 /** Small heads are enlarged at most this much (finer morphology steps; beyond it the copy grows too big). */
 const MAX_UPSCALE = 1.5;
+/**
+ * The shortest head searched for, in image pixels: the one the largest enlargement brings to
+ * WORK_HEAD_LENGTH_PX (8 px, 0.75 µm/px). Shorter, every shape limit below works on fewer
+ * pixels than it was set for, and heads cannot be told from debris (on synthetic fields at
+ * 0.8 µm/px precision falls to 0.73–0.85, at 1 µm/px recall to 0.68–0.88; see
+ * tests/unit/candidates/coarse-scale.test.ts): no candidates are given, with the reason.
+ */
+export const MIN_HEAD_LENGTH_PX = WORK_HEAD_LENGTH_PX / MAX_UPSCALE;
+/** A whole stallion sperm cell, head to tail end, µm (common practice, rounded; lib/synthetic/sperm.ts draws the same). */
+export const CELL_LENGTH_UM = 70;
+/**
+ * A cell lying on its own covers at least its length × a head's width; a field cannot hold
+ * more cells than such strips tiling it. More candidates than that are not cells.
+ */
+const CELL_FOOTPRINT_UM2 = CELL_LENGTH_UM * HEAD_WIDTH_UM;
 /** sharp's resampling kernel for the working copy: a linear kernel widened by the reduction averages grain away. */
 const RESIZE_KERNEL = 'linear';
 /** Background window, in head lengths: much larger than a head, smaller than lighting changes. */
@@ -143,12 +187,14 @@ const odd = (n: number) => (Math.round(n) % 2 === 1 ? Math.round(n) : Math.round
 const round = (n: number, d = 2) => Math.round(n * 10 ** d) / 10 ** d;
 
 /** Greyscale working copy at `scale`. 16-bit images are stretched to 8 bits (cameras fill few of their bits). */
-async function workingCopy(input: Buffer | string, scale: number, maxPixels: number | undefined) {
-  const limitInputPixels = maxPixels ?? true;
-  const meta = await sharp(input, { limitInputPixels }).metadata();
+async function orientedSize(input: Buffer | string, maxPixels: number | undefined) {
+  const meta = await sharp(input, { limitInputPixels: maxPixels ?? true }).metadata();
   const swap = (meta.orientation ?? 1) >= 5;
-  const width = swap ? meta.height! : meta.width!;
-  const height = swap ? meta.width! : meta.height!;
+  return { meta, width: swap ? meta.height! : meta.width!, height: swap ? meta.width! : meta.height! };
+}
+
+async function workingCopy(input: Buffer | string, scale: number, maxPixels: number | undefined, { meta, width, height }: Awaited<ReturnType<typeof orientedSize>>) {
+  const limitInputPixels = maxPixels ?? true;
   const workWidth = Math.max(1, Math.round(width * scale));
   const workHeight = Math.max(1, Math.round(height * scale));
   const deep = meta.depth === 'ushort' || meta.depth === 'short';
@@ -216,8 +262,29 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
   const t0 = performance.now();
   const mpp = options.micronsPerPixel;
   if (!(mpp > 0 && Number.isFinite(mpp))) throw new RangeError('micronsPerPixel must be a positive number.');
-  const scale = Math.min(MAX_UPSCALE, WORK_HEAD_LENGTH_PX / (HEAD_LENGTH_UM / mpp));
-  const [{ cv }, work] = await Promise.all([loadOpenCv(), workingCopy(input, scale, options.maxPixels)]);
+  const size = await orientedSize(input, options.maxPixels);
+  const headLengthPx = HEAD_LENGTH_UM / mpp;
+  const maxCandidates = Math.floor((size.width * size.height * mpp * mpp) / CELL_FOOTPRINT_UM2);
+  const base: BaseParams = {
+    library: OPENCV_PACKAGE,
+    sharp: sharp.versions.sharp ?? 'unknown',
+    micronsPerPixel: mpp,
+    scaleSource: options.scaleSource ?? 'image',
+    headLengthUm: HEAD_LENGTH_UM,
+    headWidthUm: HEAD_WIDTH_UM,
+    imageWidth: size.width,
+    imageHeight: size.height,
+    headLengthPx: round(headLengthPx),
+    minHeadLengthPx: MIN_HEAD_LENGTH_PX,
+    maxCandidates,
+    cellFootprintUm2: CELL_FOOTPRINT_UM2,
+  };
+  if (headLengthPx < MIN_HEAD_LENGTH_PX) {
+    const skipped = `scale too coarse: a head would be ${round(headLengthPx, 1)} px long; cell finding needs at least ${MIN_HEAD_LENGTH_PX}`;
+    return { candidates: [], method: METHOD, params: { ...base, skipped }, ms: Math.round(performance.now() - t0) };
+  }
+  const scale = Math.min(MAX_UPSCALE, WORK_HEAD_LENGTH_PX / headLengthPx);
+  const [{ cv }, work] = await Promise.all([loadOpenCv(), workingCopy(input, scale, options.maxPixels, size)]);
   const { workWidth: w, workHeight: h } = work;
   const sx = work.width / w; // exact per axis after rounding the working size
   const sy = work.height / h;
@@ -314,7 +381,15 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
 
     await breathe();
     const bin = keep(new cv.Mat());
-    const thresholdValue = cv.threshold(flat, bin, 0, 255, cv.THRESH_BINARY | cv.THRESH_OTSU);
+    // Otsu's threshold, but never inside the background's own noise: where cells are a tiny
+    // share of the pixels (a coarse scale, a sparse field), Otsu's split falls at the edge of
+    // the background's peak and its grain becomes thousands of "cells". A cell pixel stands out
+    // of the background as the polarity vote counts it: beyond POLARITY_SIGMAS × its noise.
+    const otsuValue = cv.threshold(flat, bin, 0, 255, cv.THRESH_BINARY | cv.THRESH_OTSU);
+    const backgroundLevel = polarity === 'bright' ? ratioScale : 255 - ratioScale;
+    const noiseFloor = Math.ceil(backgroundLevel + POLARITY_SIGMAS * noise * ratioScale);
+    const thresholdValue = Math.max(otsuValue, noiseFloor);
+    if (thresholdValue > otsuValue) cv.threshold(flat, bin, thresholdValue, 255, cv.THRESH_BINARY);
 
     await breathe();
     // Closing with a small disc (fills vacuoles, which would hollow a head out), then
@@ -459,16 +534,12 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
     const band = (HEAD_LENGTH_UM / mpp) * 1.5;
     candidates.sort((p, q) => Math.floor(p.y / band) - Math.floor(q.y / band) || p.x - q.x);
 
+    const found = candidates.length;
+    const implausible = found > maxCandidates;
     const params: DetectParams = {
-      library: OPENCV_PACKAGE,
+      ...base,
+      ...(implausible ? { skipped: `implausible result: ${found} candidates, more than the ${maxCandidates} cells the field could hold` } : {}),
       opencv: /OpenCV ([\d.]+)/.exec(cv.getBuildInformation())?.[1] ?? 'unknown',
-      sharp: sharp.versions.sharp ?? 'unknown',
-      micronsPerPixel: mpp,
-      scaleSource: options.scaleSource ?? 'image',
-      headLengthUm: HEAD_LENGTH_UM,
-      headWidthUm: HEAD_WIDTH_UM,
-      imageWidth: work.width,
-      imageHeight: work.height,
       workWidth: w,
       workHeight: h,
       workScale: round(scale, 5),
@@ -482,7 +553,9 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
       polaritySigmas: POLARITY_SIGMAS,
       backgroundNoise: round(noise, 4),
       ratioScale,
-      threshold: 'otsu',
+      threshold: 'otsu, at least the noise floor',
+      otsuValue,
+      thresholdFloor: noiseFloor,
       thresholdValue,
       closingKernelPx,
       openingRadiusPx,
@@ -494,7 +567,8 @@ export async function detectCandidates(input: Buffer | string, options: DetectOp
       coreJoinKernelPx: coreJoinPx,
       components: outer.length,
       split,
+      found,
     };
-    return { candidates, method: METHOD, params, ms: Math.round(performance.now() - t0) };
+    return { candidates: implausible ? [] : candidates, method: METHOD, params, ms: Math.round(performance.now() - t0) };
   });
 }

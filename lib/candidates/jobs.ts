@@ -17,6 +17,9 @@ export interface JobResult {
   ms: number;
 }
 
+/** A job's stored params (a JSON column: a string or, from some drivers, the object). */
+export const parseParams = (value: unknown): unknown => (typeof value === 'string' ? JSON.parse(value) : (value ?? null));
+
 /** Queues (or re-queues) detection for an image, inside the caller's transaction. */
 export async function enqueueDetection(trx: Knex | Knex.Transaction, imageId: number, requestedBy: number | null = null): Promise<void> {
   await trx('candidates').where({ image_id: imageId }).delete();

@@ -43,7 +43,7 @@ function keepSameCandidates(cur: Record<string, ImageCandidateSet>, next: Record
   for (const [id, set] of Object.entries(next)) {
     const old = cur[id];
     const same =
-      old && old.status === set.status && old.points.length === set.points.length && old.points.every((p, i) => p.x === set.points[i]!.x && p.y === set.points[i]!.y);
+      old && old.status === set.status && old.skipped === set.skipped && old.points.length === set.points.length && old.points.every((p, i) => p.x === set.points[i]!.x && p.y === set.points[i]!.y);
     out[id] = same ? old : set;
     if (!same) changed = true;
   }

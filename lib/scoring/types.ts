@@ -100,6 +100,8 @@ export interface ImageCandidateSet {
   status: 'waiting' | 'running' | 'done' | 'failed';
   /** Image pixels; empty until the search is done. */
   points: { x: number; y: number; score: number }[];
+  /** A done search that gave no candidates on purpose (scale too coarse…), in a technician's words. */
+  skipped?: string;
 }
 
 /** Body of GET /api/reads/:id, and what the page hands the workbench. */

@@ -25,7 +25,7 @@ interface ReadBody {
   candidates: Record<string, { status: string; points: { x: number; y: number }[] }>;
 }
 
-async function walkRead(page: Page) {
+async function walkRead(page: Page, mpp = MPP, look: 'stained' | 'phase' = 'stained') {
   const stallions = (await (await page.request.get('/api/stallions?pageSize=5')).json()) as { rows: { id: number }[] };
   const col = await page.request.post('/api/collections', {
     data: {
@@ -36,8 +36,8 @@ async function walkRead(page: Page) {
   expect(col.status(), await col.text()).toBe(201);
   const collectionId = ((await col.json()) as { collection: { id: number } }).collection.id;
   // A fixed field: the same cells (and the same candidates) every run.
-  const field = await generateField({ seed: 4040, width: 1600, height: 1200, micronsPerPixel: MPP, cells: CELLS, format: 'jpeg' });
-  const up = await page.request.post(`/api/collections/${collectionId}/images?name=walk.jpg&micronsPerPixel=${MPP}`, { headers: { 'content-type': 'application/octet-stream' }, data: field.image });
+  const field = await generateField({ seed: 4040, width: 1600, height: 1200, micronsPerPixel: mpp, cells: CELLS, format: 'jpeg', look });
+  const up = await page.request.post(`/api/collections/${collectionId}/images?name=walk.jpg&micronsPerPixel=${mpp}`, { headers: { 'content-type': 'application/octet-stream' }, data: field.image });
   expect(up.status(), await up.text()).toBe(201);
   const imageId = ((await up.json()) as { image: { id: number } }).image.id;
   // The app's worker finds the cells (the upload never waits for it).
@@ -47,7 +47,7 @@ async function walkRead(page: Page) {
   const read = await page.request.post(`/api/collections/${collectionId}/reads`, { data: { kind: 'first' } });
   const readId = ((await read.json()) as { read: { id: number } }).read.id;
   const body = (await (await page.request.get(`/api/reads/${readId}`)).json()) as ReadBody;
-  return { readId, imageId, cells: field.cells, body };
+  return { readId, imageId, collectionId, cells: field.cells, body };
 }
 
 const target = async (page: Page) => page.getByTestId('field-canvas').getAttribute('data-walk-target');
@@ -177,4 +177,21 @@ test('undo steps back through the walk, a click still marks a missed cell, and s
   await expect(dialog.getByTestId('open-candidates-warning')).toHaveCount(0);
   await dialog.getByRole('button', { name: 'Keep scoring' }).click();
   await page.getByRole('checkbox', { name: 'Show found cells' }).check();
+});
+
+test('at a scale too coarse to find cells, the canvas and the gallery say so and offer no walk', async ({ page }) => {
+  test.setTimeout(120_000);
+  // A 6 µm head (from memory) at 0.9 µm/px is 6.7 px long: too few pixels to tell from debris.
+  const { readId, imageId, collectionId, body } = await walkRead(page, 0.9, 'phase');
+  expect(body.candidates[String(imageId)]).toMatchObject({ status: 'done', points: [] });
+  const words = 'Cells are not found automatically at this scale (0.9 µm per pixel): mark them by hand.';
+  await page.goto(`/reads/${readId}`);
+  await expect(page.getByText('Loading image…')).toHaveCount(0);
+  await expect(page.getByTestId('candidate-status')).toContainText(words);
+  await page.keyboard.press('w');
+  await expect(page.getByRole('button', { name: 'Stop cell walk' })).toHaveCount(0);
+  expect(await target(page)).toBeFalsy();
+  await page.goto(`/collections/${collectionId}`);
+  await expect(page.getByText(words)).toBeVisible();
+  await expect(page.getByRole('button', { name: 'Find cells again on walk.jpg' })).toBeVisible();
 });

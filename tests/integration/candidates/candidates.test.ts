@@ -32,7 +32,7 @@ async function upload(s: Session, collectionId: number, name: string, body: Buff
   return ((await res.json()) as { image: { id: number } }).image.id;
 }
 
-type Answer = { status: string; candidates: { x: number; y: number; score: number }[]; method: string | null; params: Record<string, unknown> | null; ms: number | null; error: string | null; attempts: number };
+type Answer = { status: string; candidates: { x: number; y: number; score: number }[]; method: string | null; params: Record<string, unknown> | null; ms: number | null; error: string | null; skipped: string | null; attempts: number };
 
 async function settled(s: Session, imageId: number, want: string[] = ['done', 'failed'], timeoutMs = 40_000): Promise<Answer> {
   const until = Date.now() + timeoutMs;
@@ -64,7 +64,22 @@ describe('candidates of a field image', () => {
     expect(pairing.onlySecond.length).toBeLessThanOrEqual(1);
     // The gallery's list carries the state and the count.
     const list = (await s.json(`/api/collections/${collection}/images`)).body.images as { id: number; candidates: { status: string; count: number } }[];
-    expect(list.find((i) => i.id === id)?.candidates).toEqual({ status: 'done', count: a.candidates.length, error: null });
+    expect(list.find((i) => i.id === id)?.candidates).toEqual({ status: 'done', count: a.candidates.length, error: null, skipped: null });
+    expect(a).toMatchObject({ skipped: null });
+  });
+
+  it('are not searched for where a head is too few pixels long: done, none, and the reason in words', async () => {
+    // 6 µm head (from memory) at 0.9 µm/px: 6.7 px long, under the 8 px the search needs.
+    const s = await signedIn(USERS.tech);
+    const collection = await newCollection(s);
+    const f = await generateField({ seed: 503, width: 1200, height: 900, micronsPerPixel: 0.9, cells: 10, format: 'jpeg', look: 'phase' });
+    const id = await upload(s, collection, 'coarse.jpg', f.image, 0.9);
+    const a = await settled(s, id);
+    expect(a).toMatchObject({ status: 'done', candidates: [], error: null, skipped: 'Cells are not found automatically at this scale (0.9 µm per pixel): mark them by hand.' });
+    expect(a.method).toMatch(/ v3$/);
+    expect(a.params).toMatchObject({ micronsPerPixel: 0.9, headLengthPx: 6.67, minHeadLengthPx: 8, skipped: 'scale too coarse: a head would be 6.7 px long; cell finding needs at least 8' });
+    const list = (await s.json(`/api/collections/${collection}/images`)).body.images as { id: number; candidates: unknown }[];
+    expect(list.find((i) => i.id === id)?.candidates).toEqual({ status: 'done', count: 0, error: null, skipped: a.skipped });
   });
 
   it('uses the lab setting for an image without a scale', async () => {
