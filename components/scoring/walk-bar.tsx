@@ -50,7 +50,15 @@ export const WalkBar = memo(function WalkBar({
         </label>
         {shown && canEdit && (
           <>
-            <button type="button" className={walking ? 'btn py-1' : 'btn-secondary py-1'} aria-pressed={walking} aria-keyshortcuts="W" onClick={onToggleWalk}>
+            <button
+              type="button"
+              className={walking ? 'btn py-1' : 'btn-secondary py-1'}
+              aria-pressed={walking}
+              aria-keyshortcuts="W"
+              onClick={onToggleWalk}
+              // Nothing found anywhere in the read (yet): no walk to start.
+              disabled={!walking && openInRead === 0 && searching === 0}
+            >
               {walking ? `Stop ${WALK_NAME.toLowerCase()}` : WALK_NAME}
             </button>
             {walking && (
@@ -65,7 +73,13 @@ export const WalkBar = memo(function WalkBar({
       {shown && canEdit && (
         <p className="text-ink-soft tabular-nums" data-testid="candidate-status">
           {imageStatus === 'done' && imageSkipped
-            ? `${imageSkipped} Elsewhere in the read: ${openInRead} found cell${openInRead === 1 ? '' : 's'} not yet judged${searching ? `, finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}.`
+            ? [
+                imageSkipped,
+                openInRead > 0 && ` Elsewhere in the read: ${openInRead} found cell${openInRead === 1 ? '' : 's'} not yet judged.`,
+                searching > 0 && ` Finding cells on ${searching} other image${searching === 1 ? '' : 's'}.`,
+              ]
+                .filter(Boolean)
+                .join('')
             : `${imageText} · ${openInRead} in the read${searching ? ` · finding cells on ${searching} image${searching === 1 ? '' : 's'}` : ''}. Suggestions only: you decide every cell.`}
         </p>
       )}

@@ -187,7 +187,8 @@ test('at a scale too coarse to find cells, the canvas and the gallery say so and
   const words = 'Cells are not found automatically at this scale (0.9 µm per pixel): mark them by hand.';
   await page.goto(`/reads/${readId}`);
   await expect(page.getByText('Loading image…')).toHaveCount(0);
-  await expect(page.getByTestId('candidate-status')).toContainText(words);
+  await expect(page.getByTestId('candidate-status')).toHaveText(words);
+  await expect(page.getByRole('button', { name: 'Cell walk' })).toBeDisabled();
   await page.keyboard.press('w');
   await expect(page.getByRole('button', { name: 'Stop cell walk' })).toHaveCount(0);
   expect(await target(page)).toBeFalsy();
