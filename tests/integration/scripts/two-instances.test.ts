@@ -1,4 +1,3 @@
-import { spawn, type ChildProcess } from 'node:child_process';
 import bcrypt from 'bcryptjs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateField } from '@/lib/synthetic/generate-field';
@@ -8,35 +7,24 @@ import { closeTestDb, testDb, unique } from '../support/db';
 import { goodCollection } from '../support/fixtures';
 import { demoIds, fill, GET_ROUTES, PAGES } from '../../support/surface';
 import { APP_URL, randomLoopback, Session, signedIn, USERS } from '../support/http';
+import { startAppInstance, type AppInstance } from '../support/instance';
 
 // A second app server (node server.mjs, same build, same MariaDB, object store and session secret,
 // another port), as N instances run behind a load balancer: nothing is kept in one instance's memory
 // that another needs.
 const port = Number(new URL(APP_URL).port || 3100) + 7;
 const OTHER = `http://127.0.0.1:${port}`;
-let other: ChildProcess;
-let otherLog = '';
+let other: AppInstance;
+const otherLog = () => other.log();
 const made: BenchRead[] = [];
 const extraImages: number[] = [];
 
 beforeAll(async () => {
-  other = spawn('node', ['server.mjs'], {
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? '.next-test' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    detached: true,
-  });
-  other.stdout!.on('data', (d) => (otherLog += d));
-  other.stderr!.on('data', (d) => (otherLog += d));
-  for (let i = 0; i < 120; i++) {
-    if (await fetch(`${OTHER}/api/health`).then((r) => r.ok, () => false)) return;
-    if (other.exitCode !== null) break;
-    await new Promise((r) => setTimeout(r, 500));
-  }
-  throw new Error(`the second instance did not start on ${OTHER}:\n${otherLog.slice(-2000)}`);
+  other = await startAppInstance(port, 'the second instance');
 }, 90_000);
 
 afterAll(async () => {
-  if (other?.pid && other.exitCode === null) process.kill(-other.pid, 'SIGTERM');
+  other?.stop();
   try {
     const tech = await signedIn(USERS.tech);
     for (const id of extraImages) await tech.json(`/api/images/${id}`, 'DELETE');
@@ -158,13 +146,13 @@ describe('two app instances on one database and object store', { timeout: 120_00
       if (jobs.length === images.length && jobs.every((j) => j.status === 'done')) break;
       await new Promise((res) => setTimeout(res, 300));
     }
-    expect(jobs.map((j) => j.status), `jobs ${JSON.stringify(jobs)}; the second instance said:\n${otherLog.slice(-1500)}`).toEqual(images.map(() => 'done'));
+    expect(jobs.map((j) => j.status), `jobs ${JSON.stringify(jobs)}; the second instance said:\n${otherLog().slice(-1500)}`).toEqual(images.map(() => 'done'));
     // One claim per job (a second taker would have counted a second attempt), by a named worker.
     for (const j of jobs) {
       expect(j.attempts, `image ${j.image_id}`).toBe(1);
       expect(j.worker).toMatch(/:\d+$/);
     }
-    const byOther = jobs.filter((j) => j.worker.split(':')[1] === String(other.pid)).length;
+    const byOther = jobs.filter((j) => j.worker.split(':')[1] === String(other.proc.pid)).length;
     console.log(`detection jobs: ${byOther} of ${jobs.length} taken by the second instance, the rest by the first`);
   });
 });

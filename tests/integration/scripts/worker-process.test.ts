@@ -2,15 +2,16 @@
 // the HTTP server, is started again when it dies, and never outlives its server. An instance of
 // its own (the test build, the test port + 9, the same database and store) so the suite's app is
 // left alone.
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { readdirSync, readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { APP_URL } from '../support/http';
+import { startAppInstance, type AppInstance } from '../support/instance';
 
 const port = Number(new URL(APP_URL).port || 3100) + 9;
-const BASE = `http://127.0.0.1:${port}`;
+let instance: AppInstance;
 let server: ChildProcess;
-let log = '';
+const log = () => instance.log();
 
 /** The pids of a process's children, from /proc (Linux): the fourth field of /proc/<pid>/stat is the parent. */
 function childrenOf(pid: number): number[] {
@@ -40,48 +41,29 @@ async function until<T>(what: string, probe: () => T | undefined | false, timeou
   for (;;) {
     const v = probe();
     if (v) return v;
-    if (Date.now() > end) throw new Error(`${what} within ${timeoutMs} ms; the instance said:\n${log.slice(-1500)}`);
+    if (Date.now() > end) throw new Error(`${what} within ${timeoutMs} ms; the instance said:\n${log().slice(-1500)}`);
     await new Promise((r) => setTimeout(r, 200));
   }
 }
 
 beforeAll(async () => {
-  server = spawn('node', ['server.mjs'], {
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? '.next-test' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-    detached: true,
-  });
-  server.stdout!.on('data', (d) => (log += d));
-  server.stderr!.on('data', (d) => (log += d));
-  for (let i = 0; i < 120; i++) {
-    if (await fetch(`${BASE}/api/health`).then((r) => r.ok, () => false)) return;
-    if (server.exitCode !== null) break;
-    await new Promise((r) => setTimeout(r, 500));
-  }
-  throw new Error(`the instance did not start on ${BASE}:\n${log.slice(-2000)}`);
+  instance = await startAppInstance(port);
+  server = instance.proc;
 }, 90_000);
 
-afterAll(() => {
-  if (server?.pid && server.exitCode === null) {
-    try {
-      process.kill(-server.pid, 'SIGKILL');
-    } catch {
-      // gone already
-    }
-  }
-});
+afterAll(() => instance?.stop('SIGKILL'));
 
 describe('the worker process of an app instance', { timeout: 90_000 }, () => {
   it('runs beside the server, comes back when it dies, and goes when the server goes', async () => {
     const first = await until('a worker process beside the server', () => childrenOf(server.pid!)[0]);
-    await until('the worker process saying which workers it runs', () => log.includes(`worker process ${first}: candidates, report-pdf`));
+    await until('the worker process saying which workers it runs', () => log().includes(`worker process ${first}: candidates, report-pdf`));
 
     // Killed outright: the server starts another one, and keeps answering meanwhile.
     process.kill(first, 'SIGKILL');
-    expect((await fetch(`${BASE}/api/health`)).ok).toBe(true);
+    expect((await fetch(`${instance.base}/api/health`)).ok).toBe(true);
     const second = await until('a new worker process', () => childrenOf(server.pid!).find((p) => p !== first));
-    expect(log).toMatch(/the worker process stopped \(SIGKILL\); starting it again/);
-    await until('the new worker process running', () => log.includes(`worker process ${second}:`));
+    expect(log()).toMatch(/the worker process stopped \(SIGKILL\); starting it again/);
+    await until('the new worker process running', () => log().includes(`worker process ${second}:`));
 
     // The server killed outright (no chance to stop its child): the worker process sees its
     // channel close and leaves by itself.
