@@ -5,6 +5,7 @@ import { createReadStream } from 'node:fs';
 import { S3Client } from '@aws-sdk/client-s3';
 import type { Knex } from 'knex';
 import { env } from '../lib/env';
+import { newS3Client } from '../storage/s3-core';
 
 export const MANIFEST = 'manifest.json';
 export const DUMP = 'database.sql';
@@ -53,18 +54,7 @@ export function tableDifferences(a: Record<string, TableState>, b: Record<string
   return names.filter((n) => a[n]?.rows !== b[n]?.rows || a[n]?.checksum !== b[n]?.checksum);
 }
 
-export function s3(): S3Client {
-  const e = env();
-  return new S3Client({
-    region: e.S3_REGION,
-    endpoint: e.S3_ENDPOINT || undefined,
-    forcePathStyle: Boolean(e.S3_ENDPOINT),
-    credentials: { accessKeyId: e.S3_ACCESS_KEY_ID, secretAccessKey: e.S3_SECRET_ACCESS_KEY },
-    // As storage/s3-core.ts: the local fake would otherwise store checksum framing in the body.
-    requestChecksumCalculation: 'WHEN_REQUIRED',
-    responseChecksumValidation: 'WHEN_REQUIRED',
-  });
-}
+export const s3 = (): S3Client => newS3Client();
 
 /** An object key as a relative path inside the backup folder; refuses keys that would leave it. */
 export function objectPath(key: string): string {

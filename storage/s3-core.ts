@@ -13,19 +13,22 @@ import { env } from '@/lib/env';
 
 const globalForS3 = globalThis as unknown as { fieldmarkS3?: S3Client };
 
+/** A client for the configured store (the app keeps one; scripts such as the backup make their own). */
+export function newS3Client(): S3Client {
+  const e = env();
+  return new S3Client({
+    region: e.S3_REGION,
+    endpoint: e.S3_ENDPOINT || undefined,
+    forcePathStyle: Boolean(e.S3_ENDPOINT),
+    credentials: { accessKeyId: e.S3_ACCESS_KEY_ID, secretAccessKey: e.S3_SECRET_ACCESS_KEY },
+    // Without these the SDK frames streamed bodies in a way the local fake stores verbatim.
+    requestChecksumCalculation: 'WHEN_REQUIRED',
+    responseChecksumValidation: 'WHEN_REQUIRED',
+  });
+}
+
 function client(): S3Client {
-  if (!globalForS3.fieldmarkS3) {
-    const e = env();
-    globalForS3.fieldmarkS3 = new S3Client({
-      region: e.S3_REGION,
-      endpoint: e.S3_ENDPOINT || undefined,
-      forcePathStyle: Boolean(e.S3_ENDPOINT),
-      credentials: { accessKeyId: e.S3_ACCESS_KEY_ID, secretAccessKey: e.S3_SECRET_ACCESS_KEY },
-      // Without these the SDK frames streamed bodies in a way the local fake stores verbatim.
-      requestChecksumCalculation: 'WHEN_REQUIRED',
-      responseChecksumValidation: 'WHEN_REQUIRED',
-    });
-  }
+  globalForS3.fieldmarkS3 ??= newS3Client();
   return globalForS3.fieldmarkS3;
 }
 
